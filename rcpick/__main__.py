@@ -1,0 +1,5 @@
+"""``python -m rcpick`` runs the command line."""
+
+from rcpick.cli import main
+
+main()

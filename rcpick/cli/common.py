@@ -1,0 +1,75 @@
+"""Helpers shared by the commands: error reporting, option parsing, output."""
+
+from __future__ import annotations
+
+import csv
+import functools
+import io
+import json
+import sys
+from collections.abc import Callable
+
+import typer
+
+from rcpick.errors import BadValue, ClashingOptions, RcpickError
+from rcpick.notation import parse_quantity
+
+FORMATS = ("table", "json", "csv")
+
+
+def reports_errors(func: Callable) -> Callable:
+    """Turn an :class:`RcpickError` into one line on stderr and exit code 2."""
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        try:
+            return func(*args, **kwargs)
+        except RcpickError as error:
+            typer.echo(f"rcpick: error: {error}", err=True)
+            raise typer.Exit(2) from None
+
+    return wrapper
+
+
+def quantity(text: str | None, kind: str, option: str) -> float | None:
+    """Parse an optional quantity option (None stays None)."""
+    return None if text is None else parse_quantity(text, kind, option=option)
+
+
+def check_format(fmt: str) -> str:
+    """Validate ``--format``."""
+    if fmt not in FORMATS:
+        raise BadValue(f"unknown format {fmt!r}; accepted: {', '.join(FORMATS)}", option="--format", value=fmt)
+    return fmt
+
+
+def one_of(options: dict[str, object], what: str) -> str:
+    """Exactly one of ``options`` (name → value or None) must be given; return its name."""
+    given = [name for name, value in options.items() if value is not None]
+    if len(given) != 1:
+        names = ", ".join(options)
+        found = "none" if not given else " and ".join(given)
+        raise ClashingOptions(f"give exactly one {what} ({names}); got {found}")
+    return given[0]
+
+
+def print_json(document: object) -> None:
+    """Write a JSON document to stdout."""
+    sys.stdout.write(json.dumps(document, indent=2, ensure_ascii=False) + "\n")
+
+
+def print_csv(rows: list[dict]) -> None:
+    """Write rows (dicts with the same keys) as CSV to stdout."""
+    buffer = io.StringIO()
+    if rows:
+        writer = csv.DictWriter(buffer, fieldnames=list(rows[0]), lineterminator="\n")
+        writer.writeheader()
+        writer.writerows(rows)
+    sys.stdout.write(buffer.getvalue())
+
+
+def console():
+    """A rich console on stdout (imported late to keep start-up short)."""
+    from rich.console import Console
+
+    return Console(highlight=False)

@@ -1,0 +1,212 @@
+"""``rcpick find``: search standard parts for a timing target."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import typer
+
+from rcpick import combos, report, search, series
+from rcpick import target as targets
+from rcpick.cli.common import check_format, console, one_of, print_csv, print_json, quantity, reports_errors
+from rcpick.errors import BadValue, ClashingOptions, UnknownName
+from rcpick.notation import format_si, parse_percent, parse_quantity
+
+EPILOG = """[bold]Examples[/bold]
+
+  rcpick find --tau 10ms
+
+  rcpick find --cutoff 1.5kHz --r-series E96 --c-series E6
+
+  rcpick find --delay 200ms --threshold 70% --fix-c 1u
+
+  rcpick find --delay 2s --threshold 2.0V --supply 3.3V --r-parts 1
+
+  rcpick find --delay 3s --threshold 50V --supply 400V --falling --c-min 10u --c-max 100u
+
+[bold]Caution[/bold]: estimates only; verify on hardware. For discharge of stored
+charge and hazardous-voltage work, follow the standard in force, local codes and
+licensed practice.
+"""
+
+RANKINGS = ("error",)
+MAX_TOP = 1000
+
+
+@dataclass(frozen=True)
+class PositionDefaults:
+    """Built-in search space of one position; the docs (docs/search.md) say why."""
+
+    kind: str
+    series: str
+    low: str
+    high: str
+
+
+R_DEFAULTS = PositionDefaults("resistance", "E24", "1k", "1Meg")
+C_DEFAULTS = PositionDefaults("capacitance", "E12", "100p", "10u")
+
+
+def build_position(
+    defaults: PositionDefaults, letter: str, series_name: str | None, low_text: str | None,
+    high_text: str | None, max_parts: int | None, fix_text: str | None,
+) -> tuple[combos.Combos, str]:
+    """Candidate set of one position and a one-line description of it."""
+    unit = "Ω" if defaults.kind == "resistance" else "F"
+    if fix_text is not None:
+        given = {f"--{letter}-series": series_name, f"--{letter}-min": low_text,
+                 f"--{letter}-max": high_text, f"--{letter}-parts": max_parts}
+        for flag, value in given.items():
+            if value is not None:
+                raise ClashingOptions(f"--fix-{letter} and {flag} cannot be used together: a fixed value is not searched")
+        value = parse_quantity(fix_text, defaults.kind, option=f"--fix-{letter}")
+        return combos.fixed(value, defaults.kind), f"fixed at {format_si(value, unit, 4, trim=True)}"
+    try:
+        chosen = series.get(series_name or defaults.series)
+    except UnknownName as error:
+        raise error.for_option(f"--{letter}-series") from None
+    low = parse_quantity(low_text or defaults.low, defaults.kind, option=f"--{letter}-min")
+    high = parse_quantity(high_text or defaults.high, defaults.kind, option=f"--{letter}-max")
+    if low > high:
+        raise BadValue(
+            f"{format_si(low, unit, trim=True)} is above --{letter}-max {format_si(high, unit, trim=True)}",
+            option=f"--{letter}-min")
+    parts = 2 if max_parts is None else max_parts
+    if parts not in (1, 2):
+        raise BadValue(f"must be 1 or 2 (most parts per position), got {parts}", option=f"--{letter}-parts")
+    values = chosen.values(low, high)
+    if len(values) == 0:
+        raise BadValue(
+            f"no {chosen.name} value lies in {format_si(low, unit, trim=True)}…{format_si(high, unit, trim=True)}",
+            option=f"--{letter}-min")
+    described = (f"{chosen.name} {format_si(low, unit, trim=True)}…{format_si(high, unit, trim=True)}, "
+                 f"{'singles' if parts == 1 else 'singles and pairs'}")
+    return combos.build(values, defaults.kind, parts, low, high), described
+
+
+def read_threshold(text: str, supply_v: float | None, falling: bool) -> float:
+    """``--threshold`` as a fraction of the step: ``0.7``, ``70%`` or ``2.3V`` (with --supply)."""
+    stripped = text.strip()
+    try:
+        if stripped.endswith("%"):
+            level, is_voltage = parse_percent(stripped, option="--threshold"), False
+        elif stripped[-1:] in ("V", "v"):
+            level, is_voltage = parse_quantity(stripped, "voltage", option="--threshold"), True
+        else:
+            level, is_voltage = float(stripped), False
+    except ValueError:
+        raise BadValue(f"cannot read {text!r}; expected a fraction (0.7), a percent (70%) or a voltage (2.3V) with --supply",
+                       option="--threshold", value=text) from None
+    try:
+        return targets.threshold_fraction(level, is_voltage=is_voltage, supply_v=supply_v, falling=falling)
+    except BadValue as error:
+        raise error.for_option("--threshold") from None
+
+
+def build_target(tau, cutoff, delay, threshold, supply, falling) -> targets.Target:
+    """The target from the target options (exactly one kind)."""
+    kind = one_of({"--tau": tau, "--cutoff": cutoff, "--delay": delay}, "target")
+    if kind != "--delay":
+        for flag, value in (("--threshold", threshold), ("--supply", supply), ("--falling", falling or None)):
+            if value is not None:
+                raise ClashingOptions(f"{flag} belongs to --delay, not {kind}")
+    if kind == "--tau":
+        return targets.for_tau(quantity(tau, "time", "--tau"))
+    if kind == "--cutoff":
+        return targets.for_cutoff(quantity(cutoff, "frequency", "--cutoff"))
+    if threshold is None:
+        raise ClashingOptions("--delay needs --threshold (0.7, 70% or a voltage with --supply)")
+    delay_s = quantity(delay, "time", "--delay")
+    supply_v = quantity(supply, "voltage", "--supply")
+    return targets.for_delay(delay_s, read_threshold(threshold, supply_v, falling), falling)
+
+
+def target_line(target: targets.Target) -> str:
+    """One line naming the target, e.g. ``delay 2.00 s to 86.5 % rising (tau 1.00 s)``."""
+    if target.kind == "tau":
+        return f"tau = {format_si(target.value, 's')}"
+    if target.kind == "cutoff":
+        return f"cutoff = {format_si(target.value, 'Hz')} (tau {format_si(target.tau_s, 's')})"
+    direction = f"falling to {target.threshold:.4g} of the start" if target.falling else f"rising to {target.threshold:.4g} of the step"
+    return f"delay = {format_si(target.value, 's')}, {direction} (tau {format_si(target.tau_s, 's')})"
+
+
+def percent_text(error: float, decimals: int = 3) -> str:
+    """Signed error in percent, with no "-0.000"."""
+    text = f"{error * 100:+.{decimals}f} %"
+    return text.replace("-", "+", 1) if float(text[:-2]) == 0 else text
+
+
+def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: str) -> None:
+    """Print the shortlist as a rich table with a header line."""
+    from rich.table import Table
+
+    out = console()
+    searched = document["searched"]
+    total = searched["r_combinations"] * searched["c_combinations"]
+    out.print(f"[bold]Target[/bold] {target_line(target)}")
+    out.print(f"[bold]Searched[/bold] {searched['r_combinations']:,} R ({r_desc}) × "
+              f"{searched['c_combinations']:,} C ({c_desc}) = {total:,} combinations")
+    table = Table(show_edge=False, pad_edge=False)
+    for name, justify in (("#", "right"), ("R", "left"), ("C", "left"), ("R eff", "right"), ("C eff", "right"),
+                          ("tau", "right")):
+        table.add_column(name, justify=justify)
+    if target.kind != "tau":
+        table.add_column(target.kind, justify="right")
+    table.add_column("error", justify="right")
+    table.add_column("parts", justify="right")
+    for cand in document["candidates"]:
+        cells = [str(cand["rank"]), cand["r"]["text"], cand["c"]["text"],
+                 format_si(cand["r"]["ohm"], "Ω", 4, trim=True), format_si(cand["c"]["farad"], "F", 4, trim=True),
+                 format_si(cand["tau_s"], "s", 4)]
+        if target.kind != "tau":
+            cells.append(format_si(cand["value"], target.unit, 4))
+        cells += [percent_text(cand["error"]), str(cand["parts"])]
+        table.add_row(*cells)
+    out.print(table)
+    out.print("[dim]Wiring: a + b = in series, a ∥ b = in parallel. Values in the IEC 60062 RKM code (4K7 = 4.7 kΩ, 2u2 = 2.2 µF).[/dim]")
+
+
+@reports_errors
+def command(
+    tau: str = typer.Option(None, "--tau", help="Target time constant R·C, e.g. 10ms.", rich_help_panel="Target (give one)"),
+    cutoff: str = typer.Option(None, "--cutoff", help="Target first-order corner frequency 1/(2πRC), e.g. 1.5kHz.", rich_help_panel="Target (give one)"),
+    delay: str = typer.Option(None, "--delay", help="Target time from the step until the node crosses --threshold, e.g. 200ms.", rich_help_panel="Target (give one)"),
+    threshold: str = typer.Option(None, "--threshold", help="Level for --delay: a fraction (0.7), a percent (70%) or a voltage (2.3V, needs --supply).", rich_help_panel="Target (give one)"),
+    supply: str = typer.Option(None, "--supply", help="Step size in volts: the final value when charging, the start value with --falling.", rich_help_panel="Target (give one)"),
+    falling: bool = typer.Option(False, "--falling", help="The node discharges from its start value down to --threshold.", rich_help_panel="Target (give one)"),
+    r_series: str = typer.Option(None, "--r-series", help="E-series for resistors [default: E24].", rich_help_panel="Resistor"),
+    r_min: str = typer.Option(None, "--r-min", help="Smallest resistor and smallest combined R [default: 1k].", rich_help_panel="Resistor"),
+    r_max: str = typer.Option(None, "--r-max", help="Largest resistor and largest combined R [default: 1Meg].", rich_help_panel="Resistor"),
+    r_parts: int = typer.Option(None, "--r-parts", help="Most resistors in the R position: 1, or 2 for series/parallel pairs [default: 2].", rich_help_panel="Resistor"),
+    fix_r: str = typer.Option(None, "--fix-r", help="Use exactly this R (standard or not) and search only C.", rich_help_panel="Resistor"),
+    c_series: str = typer.Option(None, "--c-series", help="E-series for capacitors [default: E12].", rich_help_panel="Capacitor"),
+    c_min: str = typer.Option(None, "--c-min", help="Smallest capacitor and smallest combined C [default: 100p].", rich_help_panel="Capacitor"),
+    c_max: str = typer.Option(None, "--c-max", help="Largest capacitor and largest combined C [default: 10u].", rich_help_panel="Capacitor"),
+    c_parts: int = typer.Option(None, "--c-parts", help="Most capacitors in the C position: 1 or 2 [default: 2].", rich_help_panel="Capacitor"),
+    fix_c: str = typer.Option(None, "--fix-c", help="Use exactly this C (standard or not) and search only R.", rich_help_panel="Capacitor"),
+    rank: str = typer.Option("error", "--rank", help="Ranking: error = smallest |nominal error|, then fewer parts, then lower R."),
+    top: int = typer.Option(10, "--top", help=f"How many candidates to list (1…{MAX_TOP})."),
+    fmt: str = typer.Option("table", "--format", help="Output: table, json or csv."),
+) -> None:
+    """Find the standard R and C values (single parts or pairs) that best hit a timing target.
+
+    The search is exact: candidate 1 has the smallest error any allowed
+    combination achieves, and the list holds the best distinct ones.
+    """
+    check_format(fmt)
+    if rank not in RANKINGS:
+        raise BadValue(f"unknown ranking {rank!r}; accepted: {', '.join(RANKINGS)}", option="--rank", value=rank)
+    if not 1 <= top <= MAX_TOP:
+        raise BadValue(f"must be between 1 and {MAX_TOP}, got {top}", option="--top", value=top)
+    target = build_target(tau, cutoff, delay, threshold, supply, falling)
+    r_set, r_desc = build_position(R_DEFAULTS, "r", r_series, r_min, r_max, r_parts, fix_r)
+    c_set, c_desc = build_position(C_DEFAULTS, "c", c_series, c_min, c_max, c_parts, fix_c)
+    shortlist = search.best(r_set, c_set, target, top)
+    document = report.find_document(shortlist, target)
+    if fmt == "json":
+        print_json(document)
+    elif fmt == "csv":
+        print_csv(report.flat_rows(document))
+    else:
+        render_table(document, target, r_desc, c_desc)

@@ -1,0 +1,98 @@
+"""Search results as plain data: the JSON document and flat CSV rows.
+
+No I/O here: the command line prints what these functions return. The JSON
+schema is documented in ``docs/json.md``; change both together.
+"""
+
+from __future__ import annotations
+
+from rcpick.combos import ARRANGEMENTS, Combos
+from rcpick.notation import format_rkm
+from rcpick.search import Shortlist
+from rcpick.target import Target
+
+SCHEMA_VERSION = 1
+
+
+def wiring_text(combos: Combos, i: int) -> str:
+    """RKM text of one candidate with its wiring: ``4K7``, ``4K7 + 330R``, ``10K ∥ 10K``."""
+    parts = [format_rkm(v, combos.kind) for v in combos.parts_of(i)]
+    joiner = {1: " + ", 2: " ∥ "}.get(int(combos.wiring[i]), "")
+    return joiner.join(parts)
+
+
+def _position(combos: Combos, i: int, unit_key: str) -> dict:
+    return {
+        unit_key: float(combos.value[i]),
+        "arrangement": ARRANGEMENTS[int(combos.wiring[i])],
+        f"parts_{unit_key}": combos.parts_of(i),
+        "text": wiring_text(combos, i),
+    }
+
+
+def target_dict(target: Target) -> dict:
+    """The ``target`` member of the JSON document."""
+    out = {"kind": target.kind, "value": target.value, "unit": target.unit, "tau_s": target.tau_s}
+    if target.kind == "delay":
+        out["threshold"] = target.threshold
+        out["falling"] = target.falling
+    return out
+
+
+def candidates(shortlist: Shortlist, target: Target) -> list[dict]:
+    """One dict per result, best first (the ``candidates`` member of the JSON document)."""
+    rows = []
+    tau = shortlist.tau_s
+    value = target.quantity(tau)
+    for rank, (ri, ci) in enumerate(zip(shortlist.r_index, shortlist.c_index), start=1):
+        k = rank - 1
+        rows.append({
+            "rank": rank,
+            "tau_s": float(tau[k]),
+            "value": float(value[k]),
+            "error": float(value[k] / target.value - 1.0),
+            "parts": int(shortlist.parts[k]),
+            "r": _position(shortlist.r, int(ri), "ohm"),
+            "c": _position(shortlist.c, int(ci), "farad"),
+        })
+    return rows
+
+
+def find_document(shortlist: Shortlist, target: Target) -> dict:
+    """The whole JSON document of ``rcpick find``."""
+    return {
+        "schema": SCHEMA_VERSION,
+        "target": target_dict(target),
+        "searched": {
+            "r_combinations": len(shortlist.r),
+            "c_combinations": len(shortlist.c),
+        },
+        "candidates": candidates(shortlist, target),
+    }
+
+
+def flat_rows(document: dict) -> list[dict]:
+    """CSV rows: one per candidate, flat columns with units in their names."""
+    unit = document["target"]["unit"]
+    rows = []
+    for cand in document["candidates"]:
+        row = {
+            "rank": cand["rank"],
+            "r_wiring": cand["r"]["text"],
+            "r_arrangement": cand["r"]["arrangement"],
+            "r_ohm": cand["r"]["ohm"],
+            "r1_ohm": cand["r"]["parts_ohm"][0],
+            "r2_ohm": cand["r"]["parts_ohm"][1] if len(cand["r"]["parts_ohm"]) > 1 else "",
+            "c_wiring": cand["c"]["text"],
+            "c_arrangement": cand["c"]["arrangement"],
+            "c_farad": cand["c"]["farad"],
+            "c1_farad": cand["c"]["parts_farad"][0],
+            "c2_farad": cand["c"]["parts_farad"][1] if len(cand["c"]["parts_farad"]) > 1 else "",
+            "tau_s": cand["tau_s"],
+        }
+        if document["target"]["kind"] != "tau":
+            row[f"{document['target']['kind']}_{unit.lower()}"] = cand["value"]
+        row["error"] = cand["error"]
+        row["parts"] = cand["parts"]
+        rows.append(row)
+    return rows
