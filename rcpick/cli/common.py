@@ -68,8 +68,26 @@ def print_csv(rows: list[dict]) -> None:
     sys.stdout.write(buffer.getvalue())
 
 
+#: Width used when stdout is not a terminal (a pipe or a file), so tables never wrap there.
+PIPE_WIDTH = 160
+
+
 def console():
     """A rich console on stdout (imported late to keep start-up short)."""
     from rich.console import Console
 
-    return Console(highlight=False)
+    out = Console(highlight=False)
+    if not out.is_terminal:
+        out = Console(highlight=False, width=PIPE_WIDTH)
+    return out
+
+
+def table(*columns: tuple[str, str]):
+    """A compact rich table with columns (name, justify) that never wrap inside a cell."""
+    from rich import box
+    from rich.table import Table
+
+    out = Table(box=box.SIMPLE_HEAD, padding=(0, 1), show_edge=False, pad_edge=False)
+    for name, justify in columns:
+        out.add_column(name, justify=justify, no_wrap=True)
+    return out

@@ -8,7 +8,7 @@ import typer
 
 from rcpick import combos, report, search, series
 from rcpick import target as targets
-from rcpick.cli.common import check_format, console, one_of, print_csv, print_json, quantity, reports_errors
+from rcpick.cli.common import check_format, console, one_of, print_csv, print_json, quantity, reports_errors, table
 from rcpick.errors import BadValue, ClashingOptions, UnknownName
 from rcpick.notation import format_si, parse_percent, parse_quantity
 
@@ -139,22 +139,17 @@ def percent_text(error: float, decimals: int = 3) -> str:
 
 def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: str) -> None:
     """Print the shortlist as a rich table with a header line."""
-    from rich.table import Table
-
     out = console()
     searched = document["searched"]
     total = searched["r_combinations"] * searched["c_combinations"]
     out.print(f"[bold]Target[/bold] {target_line(target)}")
     out.print(f"[bold]Searched[/bold] {searched['r_combinations']:,} R ({r_desc}) × "
               f"{searched['c_combinations']:,} C ({c_desc}) = {total:,} combinations")
-    table = Table(show_edge=False, pad_edge=False)
-    for name, justify in (("#", "right"), ("R", "left"), ("C", "left"), ("R eff", "right"), ("C eff", "right"),
-                          ("tau", "right")):
-        table.add_column(name, justify=justify)
+    columns = [("#", "right"), ("R", "left"), ("C", "left"), ("R eff", "right"), ("C eff", "right"), ("tau", "right")]
     if target.kind != "tau":
-        table.add_column(target.kind, justify="right")
-    table.add_column("error", justify="right")
-    table.add_column("parts", justify="right")
+        columns.append((target.kind, "right"))
+    columns += [("error", "right"), ("parts", "right")]
+    grid = table(*columns)
     for cand in document["candidates"]:
         cells = [str(cand["rank"]), cand["r"]["text"], cand["c"]["text"],
                  format_si(cand["r"]["ohm"], "Ω", 4, trim=True), format_si(cand["c"]["farad"], "F", 4, trim=True),
@@ -162,8 +157,8 @@ def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: st
         if target.kind != "tau":
             cells.append(format_si(cand["value"], target.unit, 4))
         cells += [percent_text(cand["error"]), str(cand["parts"])]
-        table.add_row(*cells)
-    out.print(table)
+        grid.add_row(*cells)
+    out.print(grid)
     out.print("[dim]Wiring: a + b = in series, a ∥ b = in parallel. Values in the IEC 60062 RKM code (4K7 = 4.7 kΩ, 2u2 = 2.2 µF).[/dim]")
 
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import typer
 
 from rcpick import series
-from rcpick.cli.common import check_format, console, print_csv, print_json, reports_errors
+from rcpick.cli.common import check_format, console, print_csv, print_json, reports_errors, table
 from rcpick.errors import BadValue, UnknownName
 from rcpick.notation import format_rkm, format_si, parse_quantity
 
@@ -85,23 +85,18 @@ def command(
 
 def render(document: dict, rows: list[dict], kind: str, unit: str) -> None:
     """Print the listed values as a table."""
-    from rich.table import Table
-
     out = console()
     title = f"{document['series']} (usual tolerance ±{document['tolerance'] * 100:g} %)"
     if "around" in document:
         title += f" around {format_si(document['around'], unit, 4, trim=True)}; nearest by ratio: " \
                  f"{format_rkm(document['closest'], kind)}"
     out.print(f"[bold]{title}[/bold]")
-    table = Table(show_edge=False, pad_edge=False)
-    table.add_column("value", justify="right")
-    table.add_column("RKM")
-    if "around" in document:
-        table.add_column("deviation", justify="right")
+    columns = [("value", "right"), ("RKM", "left")] + ([("deviation", "right")] if "around" in document else [])
+    grid = table(*columns)
     for row in rows:
         cells = [format_si(row["value"], unit, 4, trim=True), row["rkm"]]
         if "deviation" in row:
             cells.append(f"{row['deviation'] * 100:+.2f} %")
-        table.add_row(*cells)
-    out.print(table)
+        grid.add_row(*cells)
+    out.print(grid)
     out.print(f"{len(rows)} value(s)")
