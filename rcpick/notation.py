@@ -228,3 +228,73 @@ def format_rkm(value: float, kind: str, digits: int = 4) -> str:
         group = 0  # 0.47 Ω reads R47, the usual form, rather than 470L
     whole, frac = _place_point(figures, exponent - group)
     return f"{whole}{letters[group]}{frac.rstrip('0')}"
+
+
+def _split_range(text: str) -> list[str]:
+    """``'a:b'`` → ['a', 'b']; ``'a'`` → ['a']."""
+    return [part.strip() for part in text.split(":")] if ":" in text else [text.strip()]
+
+
+def parse_band(text: str, *, option: str | None = None) -> tuple[float, float]:
+    """A relative band: ``'5%'`` → (-0.05, 0.05); ``'-20%:+80%'`` → (-0.2, 0.8). Bare numbers are percent."""
+    parts = _split_range(text)
+    if len(parts) == 1:
+        half = parse_percent(parts[0], option=option)
+        return -abs(half), abs(half)
+    if len(parts) != 2:
+        raise BadValue(f"cannot read {text!r}; expected 5% or a range such as -20%:+80%", option=option, value=text)
+    low, high = (parse_percent(p, option=option) for p in parts)
+    return low, high
+
+
+def parse_ppm_band(text: str, *, option: str | None = None) -> tuple[float, float]:
+    """A coefficient bound: ``'30ppm'`` → ±30e-6 /°C; ``'-870ppm:-630ppm'`` → (-870e-6, -630e-6)."""
+    parts = _split_range(text)
+    if len(parts) == 1:
+        half = abs(parse_ppm(parts[0], option=option))
+        return -half, half
+    if len(parts) != 2:
+        raise BadValue(f"cannot read {text!r}; expected 100ppm or a range such as -870ppm:-630ppm", option=option, value=text)
+    low, high = (parse_ppm(p, option=option) for p in parts)
+    if low > high:
+        raise BadValue(f"range {text!r} runs backwards; write the lower coefficient first", option=option, value=text)
+    return low, high
+
+
+def parse_temperature_range(text: str, *, option: str | None = None) -> tuple[float, float]:
+    """``'0:70'``, ``'-40:85'``, ``'25'`` (°C, an optional ``°C``/``C`` suffix) → (min, max) in °C."""
+    parts = _split_range(text)
+    values = []
+    for part in parts:
+        body = re.sub(r"\s*(°C|C|degC)$", "", part)
+        if not re.fullmatch(_NUMBER, body or "x"):
+            raise BadValue(f"cannot read {text!r}; expected MIN:MAX in °C such as 0:70 or -40:85, or one temperature",
+                           option=option, value=text)
+        values.append(float(body))
+    if len(values) == 1:
+        values.append(values[0])
+    if len(values) != 2:
+        raise BadValue(f"cannot read {text!r}; expected MIN:MAX in °C such as -40:85", option=option, value=text)
+    low, high = values
+    if low > high:
+        raise BadValue(f"minimum {low:g} °C is above maximum {high:g} °C", option=option, value=text)
+    if low < -273.15:
+        raise BadValue(f"{low:g} °C is below absolute zero (−273.15 °C)", option=option, value=text)
+    return low, high
+
+
+_JOINERS = {"+": "series", "//": "parallel", "||": "parallel", "∥": "parallel"}
+
+
+def parse_arrangement(text: str, kind: str, *, option: str | None = None) -> tuple[str, list[float]]:
+    """One part or a wired pair: ``4k7`` → ('single', [4700]); ``4k7+330`` → ('series', …);
+    ``10k//10k``, ``10k||10k``, ``10k∥10k`` → ('parallel', …)."""
+    found = [(j, name) for j, name in _JOINERS.items() if j in text]
+    if not found:
+        return "single", [parse_quantity(text, kind, option=option)]
+    joiner, name = found[0]
+    pieces = text.split(joiner)
+    if len(found) > 1 or len(pieces) != 2:
+        raise BadValue(f"cannot read {text!r}; give one part (4k7) or two wired in series (4k7+330) or parallel "
+                       f"(10k//10k)", option=option, value=text)
+    return name, [parse_quantity(p, kind, option=option) for p in pieces]

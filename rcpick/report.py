@@ -39,8 +39,23 @@ def target_dict(target: Target) -> dict:
     return out
 
 
-def candidates(shortlist: Shortlist, target: Target) -> list[dict]:
-    """One dict per result, best first (the ``candidates`` member of the JSON document)."""
+def spread_dict(assessed, k: int) -> dict:
+    """The ``spread`` member of candidate ``k`` (target's unit; yield a fraction)."""
+    return {
+        "worst_min": float(assessed.worst_min[k]),
+        "worst_max": float(assessed.worst_max[k]),
+        "p_low": float(assessed.p_low[k]),
+        "p_median": float(assessed.p_median[k]),
+        "p_high": float(assessed.p_high[k]),
+        "yield": float(assessed.yield_[k]),
+    }
+
+
+def candidates(shortlist: Shortlist, target: Target, assessed=None) -> list[dict]:
+    """One dict per result, best first (the ``candidates`` member of the JSON document).
+
+    ``assessed`` (an :class:`rcpick.assess.Assessed` for the same shortlist) adds each one's ``spread``.
+    """
     rows = []
     tau = shortlist.tau_s
     value = target.quantity(tau)
@@ -55,20 +70,33 @@ def candidates(shortlist: Shortlist, target: Target) -> list[dict]:
             "r": _position(shortlist.r, int(ri), "ohm"),
             "c": _position(shortlist.c, int(ci), "farad"),
         })
+        if assessed is not None:
+            rows[-1]["spread"] = spread_dict(assessed, k)
     return rows
 
 
-def find_document(shortlist: Shortlist, target: Target) -> dict:
-    """The whole JSON document of ``rcpick find``."""
-    return {
+def find_document(shortlist: Shortlist, target: Target, assessed=None, analysis: dict | None = None,
+                  warnings: list[str] | None = None) -> dict:
+    """The whole JSON document of ``rcpick find``.
+
+    With ``assessed`` the candidates carry their spread and the target its window.
+    """
+    doc = {
         "schema": SCHEMA_VERSION,
         "target": target_dict(target),
         "searched": {
             "r_combinations": len(shortlist.r),
             "c_combinations": len(shortlist.c),
         },
-        "candidates": candidates(shortlist, target),
     }
+    if assessed is not None:
+        doc["target"]["window"] = {"low": assessed.window[0], "high": assessed.window[1]}
+        shortlist = assessed.shortlist
+    if analysis is not None:
+        doc["analysis"] = analysis
+    doc["warnings"] = list(warnings or [])
+    doc["candidates"] = candidates(shortlist, target, assessed)
+    return doc
 
 
 def flat_rows(document: dict) -> list[dict]:
@@ -93,6 +121,8 @@ def flat_rows(document: dict) -> list[dict]:
         if document["target"]["kind"] != "tau":
             row[f"{document['target']['kind']}_{unit.lower()}"] = cand["value"]
         row["error"] = cand["error"]
+        for key, value in cand.get("spread", {}).items():
+            row[f"{key}_{unit.lower()}" if key != "yield" else "yield"] = value
         row["parts"] = cand["parts"]
         rows.append(row)
     return rows

@@ -129,3 +129,90 @@ def best(r: Combos, c: Combos, target: Target, top: int = 10, chunk: int = 4096)
             f"no allowed combination comes within {REACH_LIMIT:.0%} of the target "
             f"(closest is {target.error(shortlist.tau_s[:1])[0]:+.0%}); widen --r-min/--r-max or --c-min/--c-max")
     return shortlist
+
+
+#: Most candidates given a Monte Carlo run when ranking by yield or spread (docs/model.md).
+POOL_CAP = 60
+
+
+def _subset(combos: Combos, mask: np.ndarray) -> tuple[Combos, np.ndarray]:
+    index = np.flatnonzero(mask)
+    sub = Combos(combos.kind, combos.value[index], combos.wiring[index], combos.part_a[index], combos.part_b[index])
+    return sub, index
+
+
+def count_in_window(r: Combos, c: Combos, tau_low: float, tau_high: float) -> int:
+    """Exact number of (R, C) pairs with tau_low <= R·C <= tau_high (s)."""
+    outer, inner = (c, r) if len(r) > len(c) else (r, c)
+    lo = np.searchsorted(inner.value, tau_low / outer.value * (1 - 1e-12), side="left")
+    hi = np.searchsorted(inner.value, tau_high / outer.value * (1 + 1e-12), side="right")
+    return int(np.sum(hi - lo))
+
+
+@dataclass(frozen=True)
+class Pool:
+    """Candidates whose nominal value lies inside the window, chosen for analysis."""
+
+    shortlist: Shortlist
+    in_window: int  # how many allowed combinations lie inside the window in all
+    capped: bool
+
+
+def window_pool(r: Combos, c: Combos, target: Target, window: tuple[float, float], cap: int = POOL_CAP) -> Pool:
+    """Every candidate whose nominal value is inside the window, or ``cap`` of them.
+
+    When more than ``cap`` lie inside, the cap is shared equally between part
+    counts (2, 3 and 4 parts), each share taking its smallest-|error|
+    candidates (unused share passes on), so single-part designs are never
+    crowded out by pairs.
+
+    Parameters
+    ----------
+    window : (low, high)
+        Relative acceptance window around the target, e.g. (-0.1, 0.1).
+    """
+    tau_low, tau_high = sorted(target.tau_for_error(e) for e in window)
+    total = count_in_window(r, c, tau_low, tau_high)
+    groups: dict[int, list[tuple[np.ndarray, np.ndarray]]] = {2: [], 3: [], 4: []}
+    for r_single in (True, False):
+        for c_single in (True, False):
+            r_sub, r_index = _subset(r, (r.parts == 1) == r_single)
+            c_sub, c_index = _subset(c, (c.parts == 1) == c_single)
+            if len(r_sub) == 0 or len(c_sub) == 0:
+                continue
+            try:
+                found = best(r_sub, c_sub, target, top=min(cap, total) or 1)
+            except Unreachable:
+                continue
+            tau = found.tau_s
+            inside = (tau >= tau_low * (1 - 1e-12)) & (tau <= tau_high * (1 + 1e-12))
+            parts = 2 + (not r_single) + (not c_single)
+            groups[parts].append((r_index[found.r_index[inside]], c_index[found.c_index[inside]]))
+    merged = {}
+    for parts, found in groups.items():
+        ri = np.concatenate([f[0] for f in found]) if found else np.empty(0, dtype=np.intp)
+        ci = np.concatenate([f[1] for f in found]) if found else np.empty(0, dtype=np.intp)
+        order = rank_order(np.abs(target.error(r.value[ri] * c.value[ci])), r.parts[ri] + c.parts[ci], r.value[ri], c.value[ci])
+        merged[parts] = (ri[order], ci[order])
+    chosen = _share(merged, cap)
+    ri = np.concatenate([chosen[p][0] for p in sorted(chosen)]).astype(np.intp)
+    ci = np.concatenate([chosen[p][1] for p in sorted(chosen)]).astype(np.intp)
+    return Pool(Shortlist(r, c, ri, ci), total, total > len(ri))
+
+
+def _share(groups: dict[int, tuple[np.ndarray, np.ndarray]], cap: int) -> dict[int, tuple[np.ndarray, np.ndarray]]:
+    """Take up to ``cap`` items over the groups, an equal share each, unused share passing on."""
+    take = {p: 0 for p in groups}
+    left = cap
+    open_groups = [p for p in groups if len(groups[p][0])]
+    while left > 0 and open_groups:
+        share = max(1, left // len(open_groups))
+        for p in list(open_groups):
+            extra = min(share, len(groups[p][0]) - take[p], left)
+            take[p] += extra
+            left -= extra
+            if take[p] == len(groups[p][0]):
+                open_groups.remove(p)
+            if left == 0:
+                break
+    return {p: (groups[p][0][: take[p]], groups[p][1][: take[p]]) for p in groups}

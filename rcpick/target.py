@@ -65,6 +65,12 @@ class Target:
             return 1.0 / (2.0 * math.pi * tau_s)
         return tau_s * self.delay_per_tau
 
+    def tau_for_error(self, error: float) -> float:
+        """The time constant (s) whose quantity has relative error ``error`` against the target."""
+        if self.kind == "cutoff":
+            return self.tau_s / (1.0 + error)
+        return self.tau_s * (1.0 + error)
+
     def error(self, tau_s: np.ndarray | float) -> np.ndarray:
         """Signed relative error of the quantity: quantity/target − 1."""
         return self.quantity(tau_s) / self.value - 1.0

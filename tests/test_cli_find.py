@@ -16,8 +16,10 @@ def test_tau_table(run):
 
 
 def test_json_schema(run_json):
-    doc = run_json("find", "--tau", "4.7ms", "--top", "5")
+    doc = run_json("find", "--tau", "4.7ms", "--top", "5", "--rank", "error")
+    window = doc["target"].pop("window")
     assert doc["target"] == {"kind": "tau", "value": 4.7e-3, "unit": "s", "tau_s": 4.7e-3}
+    assert window["low"] == pytest.approx(4.7e-3 * 0.9) and window["high"] == pytest.approx(4.7e-3 * 1.1)
     assert doc["searched"]["r_combinations"] > 1000 and doc["searched"]["c_combinations"] > 1000
     assert [c["rank"] for c in doc["candidates"]] == [1, 2, 3, 4, 5]
     for cand in doc["candidates"]:
@@ -27,13 +29,16 @@ def test_json_schema(run_json):
         assert math.isclose(cand["tau_s"], r["ohm"] * c["farad"], rel_tol=1e-12)
         assert math.isclose(cand["error"], cand["value"] / 4.7e-3 - 1, abs_tol=1e-15)
         assert cand["parts"] == len(r["parts_ohm"]) + len(c["parts_farad"])
+        sp = cand["spread"]
+        assert sp["worst_min"] <= sp["p_low"] <= sp["p_median"] <= sp["p_high"] <= sp["worst_max"]
+        assert 0.0 <= sp["yield"] <= 1.0
     errors = [abs(c["error"]) for c in doc["candidates"]]
     assert errors == sorted(errors)
 
 
 def test_kuphaldt_delay_picks_10k(run_json):
     # Kuphaldt, Lessons in Electric Circuits Vol. I ch. 16: 15 V, 10 kΩ, 100 µF reaches 12.970 V at 2 s.
-    doc = run_json("find", "--delay", "2s", "--threshold", "12.970V", "--supply", "15V", "--fix-c", "100u")
+    doc = run_json("find", "--delay", "2s", "--threshold", "12.970V", "--supply", "15V", "--fix-c", "100u", "--rank", "error")
     best = doc["candidates"][0]
     assert best["r"]["ohm"] == 10e3 and best["r"]["arrangement"] == "single"
     assert abs(best["error"]) < 2e-4
@@ -42,16 +47,17 @@ def test_kuphaldt_delay_picks_10k(run_json):
 
 def test_openstax_falling_delay_picks_1k(run_json):
     # OpenStax CP2e §21.6: 1.00 kΩ, 8.00 µF, 10.0 kV falls to 498 V in 24.0 ms.
-    doc = run_json("find", "--delay", "24ms", "--threshold", "498V", "--supply", "10kV", "--falling", "--fix-c", "8u")
+    doc = run_json("find", "--delay", "24ms", "--threshold", "498V", "--supply", "10kV", "--falling", "--fix-c", "8u",
+                   "--rank", "error")
     assert doc["candidates"][0]["r"]["ohm"] == 1e3
     assert doc["target"]["falling"] is True
 
 
 def test_cutoff_and_percent_threshold(run_json):
-    doc = run_json("find", "--cutoff", "159.155Hz", "--fix-r", "10k", "--top", "1")
+    doc = run_json("find", "--cutoff", "159.155Hz", "--fix-r", "10k", "--top", "1", "--rank", "error")
     assert doc["candidates"][0]["c"]["farad"] == 100e-9  # 10 kΩ, 100 nF → 159.155 Hz
-    pct = run_json("find", "--delay", "1ms", "--threshold", "63.212%", "--fix-r", "10k", "--top", "1")
-    frac = run_json("find", "--delay", "1ms", "--threshold", "0.63212", "--fix-r", "10k", "--top", "1")
+    pct = run_json("find", "--delay", "1ms", "--threshold", "63.212%", "--fix-r", "10k", "--top", "1", "--rank", "error")
+    frac = run_json("find", "--delay", "1ms", "--threshold", "0.63212", "--fix-r", "10k", "--top", "1", "--rank", "error")
     assert pct["candidates"] == frac["candidates"]
     assert pct["candidates"][0]["c"]["farad"] == 100e-9
 
@@ -62,7 +68,7 @@ def test_single_parts_only(run_json):
 
 
 def test_pairs_appear_when_they_help(run_json):
-    doc = run_json("find", "--tau", "1.2345ms", "--top", "3")
+    doc = run_json("find", "--tau", "1.2345ms", "--top", "3", "--rank", "error")
     assert any(c["parts"] > 2 for c in doc["candidates"])
     assert abs(doc["candidates"][0]["error"]) < 1e-4
 
@@ -72,7 +78,8 @@ def test_csv_reads_back(run):
     assert result.exit_code == 0
     rows = list(csv.DictReader(io.StringIO(result.stdout)))
     assert len(rows) == 4
-    assert {"rank", "r_wiring", "r_ohm", "c_wiring", "c_farad", "tau_s", "cutoff_hz", "error", "parts"} <= set(rows[0])
+    assert {"rank", "r_wiring", "r_ohm", "c_wiring", "c_farad", "tau_s", "cutoff_hz", "error", "parts",
+            "worst_min_hz", "worst_max_hz", "p_low_hz", "p_median_hz", "p_high_hz", "yield"} <= set(rows[0])
     for row in rows:
         assert float(row["tau_s"]) == pytest.approx(float(row["r_ohm"]) * float(row["c_farad"]))
 
@@ -93,7 +100,8 @@ BAD = {
     "two targets": (["--tau", "1ms", "--cutoff", "1kHz"], "--tau and --cutoff", "exactly one"),
     "fix with parts": (["--tau", "1ms", "--fix-r", "10k", "--r-parts", "1"], "--fix-r and --r-parts", "together"),
     "top 0": (["--tau", "1ms", "--top", "0"], "--top", "between 1 and"),
-    "unreachable": (["--tau", "1000s"], "within 50%", "widen"),
+    "unreachable": (["--tau", "1000s", "--rank", "error"], "within 50%", "widen"),
+    "nothing inside the window": (["--tau", "1000s"], "inside the window", "--rank error"),
     "r-parts 3": (["--tau", "1ms", "--r-parts", "3"], "--r-parts", "1 or 2"),
     "threshold without delay": (["--tau", "1ms", "--threshold", "0.5"], "--threshold", "--delay"),
     "delay without threshold": (["--delay", "1ms"], "--delay", "--threshold"),

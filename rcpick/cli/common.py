@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import csv
 import functools
 import io
@@ -91,3 +92,29 @@ def table(*columns: tuple[str, str]):
     for name, justify in columns:
         out.add_column(name, justify=justify, no_wrap=True)
     return out
+
+
+def warn(message: str) -> None:
+    """A warning line on stderr (used where stdout carries data)."""
+    typer.echo(f"rcpick: warning: {message}", err=True)
+
+
+#: Unit-evaluations above which a progress bar is worth showing (about a second of work).
+PROGRESS_THRESHOLD = 10_000_000
+
+
+@contextlib.contextmanager
+def progress_reporter(total: int, label: str):
+    """Yield a callback ``step(n)``; shows a rich progress bar on stderr for long work in a terminal."""
+    from rich.console import Console
+
+    err = Console(stderr=True)
+    if total < PROGRESS_THRESHOLD or not err.is_terminal:
+        yield None
+        return
+    from rich.progress import BarColumn, Progress, TimeRemainingColumn
+
+    with Progress(f"[bold]{label}[/bold]", BarColumn(), "{task.percentage:>3.0f} %", TimeRemainingColumn(),
+                  console=err, transient=True) as bar:
+        task = bar.add_task(label, total=total)
+        yield lambda n: bar.advance(task, n)

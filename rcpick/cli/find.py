@@ -6,10 +6,12 @@ from dataclasses import dataclass
 
 import typer
 
-from rcpick import combos, report, search, series
+from rcpick import assess, combos, report, search, series
 from rcpick import target as targets
-from rcpick.cli.common import check_format, console, one_of, print_csv, print_json, quantity, reports_errors, table
-from rcpick.errors import BadValue, ClashingOptions, UnknownName
+from rcpick.cli import spreadopts as so
+from rcpick.cli.common import (check_format, console, one_of, print_csv, print_json, progress_reporter, quantity,
+                               reports_errors, table, warn)
+from rcpick.errors import BadValue, ClashingOptions, UnknownName, Unreachable
 from rcpick.notation import format_si, parse_percent, parse_quantity
 
 EPILOG = """[bold]Examples[/bold]
@@ -24,13 +26,17 @@ EPILOG = """[bold]Examples[/bold]
 
   rcpick find --delay 3s --threshold 50V --supply 400V --falling --c-min 10u --c-max 100u
 
+  rcpick find --tau 1ms --dielectric C0G --r-tech thin-film --temp -40:85 --window 2%
+
+  rcpick find --cutoff 10kHz --rank error --format json
+
 [bold]Caution[/bold]: estimates only; verify on hardware. For discharge of stored
 charge and hazardous-voltage work, follow the standard in force, local codes and
 licensed practice.
 """
 
-RANKINGS = ("error",)
-MAX_TOP = 1000
+RANKINGS = assess.RANKINGS
+MAX_TOP = 200
 
 
 @dataclass(frozen=True)
@@ -137,18 +143,31 @@ def percent_text(error: float, decimals: int = 3) -> str:
     return text.replace("-", "+", 1) if float(text[:-2]) == 0 else text
 
 
-def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: str) -> None:
+def _rel(value: float, target: float) -> str:
+    return f"{(value / target - 1) * 100:+.1f}"
+
+
+def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: str, notes: list[str]) -> None:
     """Print the shortlist as a rich table with a header line."""
     out = console()
     searched = document["searched"]
     total = searched["r_combinations"] * searched["c_combinations"]
-    out.print(f"[bold]Target[/bold] {target_line(target)}")
+    out.print(f"[bold]Target[/bold] {target_line(target)}", end="")
+    if "window" in document["target"]:
+        w = document["target"]["window"]
+        out.print(f", window {format_si(w['low'], target.unit, 4)} … {format_si(w['high'], target.unit, 4)}")
+    else:
+        out.print()
     out.print(f"[bold]Searched[/bold] {searched['r_combinations']:,} R ({r_desc}) × "
               f"{searched['c_combinations']:,} C ({c_desc}) = {total:,} combinations")
+    for note in notes:
+        out.print(note)
+    for message in document["warnings"]:
+        out.print(f"[yellow]Warning:[/yellow] {message}")
     columns = [("#", "right"), ("R", "left"), ("C", "left"), ("R eff", "right"), ("C eff", "right"), ("tau", "right")]
     if target.kind != "tau":
         columns.append((target.kind, "right"))
-    columns += [("error", "right"), ("parts", "right")]
+    columns += [("error", "right"), ("worst case %", "right"), ("MC 99.73 % %", "right"), ("yield", "right"), ("parts", "right")]
     grid = table(*columns)
     for cand in document["candidates"]:
         cells = [str(cand["rank"]), cand["r"]["text"], cand["c"]["text"],
@@ -156,10 +175,17 @@ def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: st
                  format_si(cand["tau_s"], "s", 4)]
         if target.kind != "tau":
             cells.append(format_si(cand["value"], target.unit, 4))
-        cells += [percent_text(cand["error"]), str(cand["parts"])]
+        sp = cand["spread"]
+        cells += [percent_text(cand["error"]),
+                  f"{_rel(sp['worst_min'], target.value)} … {_rel(sp['worst_max'], target.value)}",
+                  f"{_rel(sp['p_low'], target.value)} … {_rel(sp['p_high'], target.value)}",
+                  f"{sp['yield'] * 100:.1f} %", str(cand["parts"])]
         grid.add_row(*cells)
     out.print(grid)
-    out.print("[dim]Wiring: a + b = in series, a ∥ b = in parallel. Values in the IEC 60062 RKM code (4K7 = 4.7 kΩ, 2u2 = 2.2 µF).[/dim]")
+    out.print("[dim]Wiring: a + b = in series, a ∥ b = in parallel, in the IEC 60062 RKM code (4K7 = 4.7 kΩ, 2u2 = 2.2 µF). "
+              "Spread columns in % of the target: worst case over tolerance and temperature; Monte Carlo 0.135 %…99.865 % "
+              "span; yield = units inside the window at every temperature checked.[/dim]")
+    out.print("[dim]Estimates only: verify on hardware.[/dim]")
 
 
 @reports_errors
@@ -180,14 +206,19 @@ def command(
     c_max: str = typer.Option(None, "--c-max", help="Largest capacitor and largest combined C [default: 10u].", rich_help_panel="Capacitor"),
     c_parts: int = typer.Option(None, "--c-parts", help="Most capacitors in the C position: 1 or 2 [default: 2].", rich_help_panel="Capacitor"),
     fix_c: str = typer.Option(None, "--fix-c", help="Use exactly this C (standard or not) and search only R.", rich_help_panel="Capacitor"),
-    rank: str = typer.Option("error", "--rank", help="Ranking: error = smallest |nominal error|, then fewer parts, then lower R."),
+    r_tol: str = so.R_TOL, r_tcr: str = so.R_TCR, r_tech: str = so.R_TECH,
+    c_tol: str = so.C_TOL, dielectric: str = so.DIELECTRIC, c_tc: str = so.C_TC,
+    c_bias_loss: str = so.C_BIAS_LOSS, c_age: str = so.C_AGE, temp: str = so.TEMP, window: str = so.WINDOW,
+    threshold_tol: str = so.THRESHOLD_TOL, dist: str = so.DIST, samples: int = so.SAMPLES, seed: int = so.SEED,
+    rank: str = typer.Option("yield", "--rank", help="yield: highest yield (to 0.1 %) first, then fewer parts, then smaller |error|; error: smallest |nominal error|, then fewer parts, then lower R; spread: narrowest worst-case span."),
     top: int = typer.Option(10, "--top", help=f"How many candidates to list (1…{MAX_TOP})."),
     fmt: str = typer.Option("table", "--format", help="Output: table, json or csv."),
 ) -> None:
     """Find the standard R and C values (single parts or pairs) that best hit a timing target.
 
-    The search is exact: candidate 1 has the smallest error any allowed
-    combination achieves, and the list holds the best distinct ones.
+    The nominal search is exact. Each listed candidate gets its worst case and
+    Monte Carlo spread over tolerance and temperature, and its yield inside the
+    acceptance window; by default the list is ranked by yield.
     """
     check_format(fmt)
     if rank not in RANKINGS:
@@ -197,11 +228,38 @@ def command(
     target = build_target(tau, cutoff, delay, threshold, supply, falling)
     r_set, r_desc = build_position(R_DEFAULTS, "r", r_series, r_min, r_max, r_parts, fix_r)
     c_set, c_desc = build_position(C_DEFAULTS, "c", c_series, c_min, c_max, c_parts, fix_c)
-    shortlist = search.best(r_set, c_set, target, top)
-    document = report.find_document(shortlist, target)
+    settings = so.read_spread_options(
+        r_series=r_series, r_tol=r_tol, r_tcr=r_tcr, r_tech=r_tech, c_tol=c_tol, dielectric=dielectric, c_tc=c_tc,
+        c_bias_loss=c_bias_loss, c_age=c_age, temp=temp, window=window, threshold_tol=threshold_tol, dist=dist,
+        samples=samples, seed=seed, delay_target=target.kind == "delay")
+    cond = assess.Conditions(settings.r_model, settings.c_model, settings.temp_c, settings.window,
+                             settings.threshold_band, settings.dist, settings.samples, settings.seed)
+    notes = []
+    pool_info = None
+    if rank == "error":
+        candidates = search.best(r_set, c_set, target, top)
+    else:
+        pool = search.window_pool(r_set, c_set, target, settings.window)
+        if len(pool.shortlist) == 0:
+            raise Unreachable(f"no allowed combination has its nominal value inside the window "
+                              f"{settings.window[0] * 100:+g} %…{settings.window[1] * 100:+g} %; widen --window or the "
+                              f"ranges, or use --rank error")
+        candidates = pool.shortlist
+        pool_info = {"in_window": pool.in_window, "analysed": len(pool.shortlist), "capped": pool.capped,
+                     "cap": search.POOL_CAP}
+        if pool.capped:
+            notes.append(f"[bold]Analysed[/bold] {len(pool.shortlist)} of {pool.in_window:,} combinations inside the "
+                         f"window (cap {search.POOL_CAP}: an equal share per part count, smallest |error| first)")
+    mc_count = len(candidates) if rank == "yield" else min(top, len(candidates))
+    with progress_reporter(assess.evaluations(mc_count, cond), "Monte Carlo") as step:
+        assessed = assess.assess(candidates, target, cond, rank, top, progress=step)
+    analysis = {"rank": rank, "pool": pool_info, "settings": settings.as_dict()}
+    document = report.find_document(candidates, target, assessed, analysis, settings.warnings)
     if fmt == "json":
         print_json(document)
     elif fmt == "csv":
+        for message in settings.warnings:
+            warn(message)
         print_csv(report.flat_rows(document))
     else:
-        render_table(document, target, r_desc, c_desc)
+        render_table(document, target, r_desc, c_desc, notes)
