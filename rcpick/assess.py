@@ -47,6 +47,7 @@ class Assessed:
     p_low: np.ndarray
     p_median: np.ndarray
     p_high: np.ndarray
+    sigma: np.ndarray
     yield_: np.ndarray
     window: tuple[float, float]  # absolute, target's unit
     analysed: int  # candidates given a Monte Carlo run
@@ -105,7 +106,7 @@ def assess(shortlist: Shortlist, target: Target, cond: Conditions, rank: str, to
         order = np.lexsort((shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts,
                             -np.round(mc.yield_, YIELD_DECIMALS)))[:top]
     return Assessed(_take(shortlist, order), lo[order], hi[order], mc.p_low[order], mc.p_median[order],
-                    mc.p_high[order], mc.yield_[order], window, len(the_study.r))
+                    mc.p_high[order], mc.sigma[order], mc.yield_[order], window, len(the_study.r))
 
 
 def evaluations(count: int, cond: Conditions) -> int:

@@ -47,6 +47,7 @@ def spread_dict(assessed, k: int) -> dict:
         "p_low": float(assessed.p_low[k]),
         "p_median": float(assessed.p_median[k]),
         "p_high": float(assessed.p_high[k]),
+        "sigma": float(assessed.sigma[k]),
         "yield": float(assessed.yield_[k]),
     }
 

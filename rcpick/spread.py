@@ -374,6 +374,7 @@ class MonteCarlo:
     p_low: np.ndarray      # 0.135 % point of each unit's minimum over the temperature range
     p_median: np.ndarray   # median of the units' values at the reference temperature
     p_high: np.ndarray     # 99.865 % point of each unit's maximum over the temperature range
+    sigma: np.ndarray      # standard deviation of the units' values at the reference temperature
     yield_: np.ndarray | None  # share of units inside the window at every checked temperature
     samples: int
     temperatures_c: np.ndarray
@@ -441,8 +442,9 @@ def monte_carlo(
     p_low = np.quantile(lows, P_LOW, axis=1)
     p_high = np.quantile(highs, P_HIGH, axis=1)
     p_median = np.median(refs, axis=1)
+    sigma = np.std(refs, axis=1, ddof=1)
     yield_ = None
     if window is not None:
         yield_ = np.mean((lows >= window[0]) & (highs <= window[1]), axis=1)
-    return MonteCarlo(p_low, p_median, p_high, yield_, samples, temps, float(temps[ref_index]),
+    return MonteCarlo(p_low, p_median, p_high, sigma, yield_, samples, temps, float(temps[ref_index]),
                       (counts, edges) if counts is not None else None, m * samples * len(temps))

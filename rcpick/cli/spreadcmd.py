@@ -107,11 +107,13 @@ def command(
         "spread": {
             "worst_min": worst_min, "worst_max": worst_max,
             "p_low": float(mc.p_low[0]), "p_median": float(mc.p_median[0]), "p_high": float(mc.p_high[0]),
+            "sigma": float(mc.sigma[0]),
             "yield": float(mc.yield_[0]) if mc.yield_ is not None else None,
         },
         "contributions": shares,
         "histogram": {"edges": mc.histogram[1].tolist(), "counts": mc.histogram[0].tolist()},
         "temperatures_c": mc.temperatures_c.tolist(),
+        "reference_c": mc.reference_c,
         "settings": settings.as_dict(),
         "warnings": settings.warnings,
     }
@@ -154,6 +156,7 @@ def render(doc: dict, target: targets.Target, has_target: bool, settings) -> Non
             ("MC 0.135 %", sp["p_low"]), ("MC median", sp["p_median"]), ("MC 99.865 %", sp["p_high"])]
     for name, value in rows:
         grid.add_row(name, format_si(value, unit, 4), percent_text(value / ref - 1, 2))
+    grid.add_row(f"MC σ at {doc['reference_c']:g} °C", format_si(sp["sigma"], unit, 3), f"{sp['sigma'] / ref * 100:.2f} %")
     if sp["yield"] is not None:
         grid.add_row("yield", f"{sp['yield'] * 100:.2f} %", "")
     out.print(grid)
