@@ -55,19 +55,19 @@ def histogram_lines(counts: np.ndarray, edges: np.ndarray, marks: dict[str, floa
 
 @reports_errors
 def command(
-    r: str = typer.Option(..., "--r", help="Resistor position: 4k7, 4k7+330 (series) or 10k//10k (parallel; || too)."),
-    c: str = typer.Option(..., "--c", help="Capacitor position: 100n, 47n+47n (series) or 47n//47n (parallel)."),
-    tau: str = typer.Option(None, "--tau", help="Target time constant; without a target the spread is of tau, relative to nominal.", rich_help_panel="Target (optional)"),
-    cutoff: str = typer.Option(None, "--cutoff", help="Target first-order corner frequency.", rich_help_panel="Target (optional)"),
-    delay: str = typer.Option(None, "--delay", help="Target delay to --threshold.", rich_help_panel="Target (optional)"),
-    threshold: str = typer.Option(None, "--threshold", help="Level for --delay: 0.7, 70% or 2.3V with --supply.", rich_help_panel="Target (optional)"),
-    supply: str = typer.Option(None, "--supply", help="Step size in volts (start value with --falling).", rich_help_panel="Target (optional)"),
+    r: str = typer.Option(..., "--r", metavar="PARTS", help="Resistor position: 4k7, 4k7+330 (series) or 10k//10k (parallel; || too)."),
+    c: str = typer.Option(..., "--c", metavar="PARTS", help="Capacitor position: 100n, 47n+47n (series) or 47n//47n (parallel)."),
+    tau: str = typer.Option(None, "--tau", metavar="TIME", help="Target time constant; without a target the spread is of tau, relative to nominal.", rich_help_panel="Target (optional)"),
+    cutoff: str = typer.Option(None, "--cutoff", metavar="FREQ", help="Target first-order corner frequency.", rich_help_panel="Target (optional)"),
+    delay: str = typer.Option(None, "--delay", metavar="TIME", help="Target delay to --threshold.", rich_help_panel="Target (optional)"),
+    threshold: str = typer.Option(None, "--threshold", metavar="LEVEL", help="Level for --delay: 0.7, 70% or 2.3V with --supply.", rich_help_panel="Target (optional)"),
+    supply: str = typer.Option(None, "--supply", metavar="VOLTS", help="Step size in volts (start value with --falling).", rich_help_panel="Target (optional)"),
     falling: bool = typer.Option(False, "--falling", help="The node discharges down to --threshold.", rich_help_panel="Target (optional)"),
     r_tol: str = so.R_TOL, r_tcr: str = so.R_TCR, r_tech: str = so.R_TECH,
     c_tol: str = so.C_TOL, dielectric: str = so.DIELECTRIC, c_tc: str = so.C_TC,
     c_bias_loss: str = so.C_BIAS_LOSS, c_age: str = so.C_AGE, temp: str = so.TEMP, window: str = so.WINDOW,
     threshold_tol: str = so.THRESHOLD_TOL, dist: str = so.DIST, samples: int = so.SAMPLES, seed: int = so.SEED,
-    fmt: str = typer.Option("table", "--format", help="Output: table or json."),
+    fmt: str = typer.Option("table", "--format", metavar="table|json", help="Output: table or json."),
 ) -> None:
     """Analyse one design: worst case, Monte Carlo spread, yield, and what each source contributes."""
     check_format(fmt)

@@ -34,11 +34,11 @@ def guess_kind(texts: list[str | None]) -> str:
 @reports_errors
 def command(
     series_name: str = typer.Argument(..., metavar="SERIES", help="E3, E6, E12, E24, E48, E96 or E192."),
-    low: str = typer.Option(None, "--from", help="Lowest value (included), e.g. 1k or 1n [default: 1k, or 1n for capacitors]."),
-    high: str = typer.Option(None, "--to", help="Highest value (included), e.g. 10k [default: 10× --from's decade start]."),
-    around: str = typer.Option(None, "--around", help="Show the standard values just below and above this value, nearest by ratio (log distance), with their deviation."),
-    part: str = typer.Option(None, "--part", help="resistor or capacitor [default: guessed from the values' units; resistor]."),
-    fmt: str = typer.Option("table", "--format", help="Output: table, json or csv."),
+    low: str = typer.Option(None, "--from", metavar="VALUE", help="Lowest value (included), e.g. 1k or 1n \\[default: 1k, or 1n for capacitors]."),
+    high: str = typer.Option(None, "--to", metavar="VALUE", help="Highest value (included), e.g. 10k \\[default: 10× --from's decade start]."),
+    around: str = typer.Option(None, "--around", metavar="VALUE", help="Show the standard values just below and above this value, nearest by ratio (log distance), with their deviation."),
+    part: str = typer.Option(None, "--part", metavar="resistor|capacitor", help="resistor or capacitor \\[default: guessed from the values' units; resistor]."),
+    fmt: str = typer.Option("table", "--format", metavar="table|json|csv", help="Output: table, json or csv."),
 ) -> None:
     """List the values of an IEC 60063 E-series, or the neighbours of one value.
 
