@@ -35,6 +35,8 @@ class Conditions:
     dist: str = "uniform"
     samples: int = 20000
     seed: int | None = 1
+    r_models: dict[float, PartModel] | None = None  # per part value (stocked parts); others use r_model
+    c_models: dict[float, PartModel] | None = None
 
 
 @dataclass(frozen=True)
@@ -51,10 +53,15 @@ class Assessed:
     yield_: np.ndarray
     window: tuple[float, float]  # absolute, target's unit
     analysed: int  # candidates given a Monte Carlo run
+    r_models: list  # per candidate: the PartModel of each R part
+    c_models: list
 
 
-def _position(combos: Combos, index: np.ndarray, model: PartModel) -> spread.Position:
+def _position(combos: Combos, index: np.ndarray, model: PartModel, by_value: dict[float, PartModel] | None) -> spread.Position:
     parts = [combos.parts_of(int(i)) for i in index]
+    if by_value:
+        models = [[by_value.get(v, model) for v in values] + [model] * (2 - len(values)) for values in parts]
+        return spread.Position.of(combos.kind, parts, combos.wiring[index], models)
     return spread.Position.of(combos.kind, parts, combos.wiring[index], model)
 
 
@@ -64,8 +71,9 @@ def study(shortlist: Shortlist, target: Target, cond: Conditions) -> spread.Stud
     if target.kind == "delay":
         threshold = spread.Threshold(target.threshold, target.falling, cond.threshold_band)
         threshold.check()
-    return spread.Study(_position(shortlist.r, shortlist.r_index, cond.r_model),
-                        _position(shortlist.c, shortlist.c_index, cond.c_model), cond.temp_c, target, threshold)
+    return spread.Study(_position(shortlist.r, shortlist.r_index, cond.r_model, cond.r_models),
+                        _position(shortlist.c, shortlist.c_index, cond.c_model, cond.c_models), cond.temp_c, target,
+                        threshold)
 
 
 def window_of(target: Target, window: tuple[float, float]) -> tuple[float, float]:
@@ -106,7 +114,8 @@ def assess(shortlist: Shortlist, target: Target, cond: Conditions, rank: str, to
         order = np.lexsort((shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts,
                             -np.round(mc.yield_, YIELD_DECIMALS)))[:top]
     return Assessed(_take(shortlist, order), lo[order], hi[order], mc.p_low[order], mc.p_median[order],
-                    mc.p_high[order], mc.sigma[order], mc.yield_[order], window, len(the_study.r))
+                    mc.p_high[order], mc.sigma[order], mc.yield_[order], window, len(the_study.r),
+                    [the_study.r.models[i] for i in order], [the_study.c.models[i] for i in order])
 
 
 def evaluations(count: int, cond: Conditions) -> int:

@@ -96,6 +96,10 @@ class PartModel:
         Fixed relative loss, e.g. capacitance lost at the working DC bias.
     label : str
         Description for output.
+    name : str
+        Resistor technology or dielectric code (``thick-film``, ``X7R`` …), for part lists.
+    part_number : str
+        The stocked part's number, when the part comes from a stock file.
     """
 
     tolerance: tuple[float, float]
@@ -103,6 +107,8 @@ class PartModel:
     aging: tuple[float, float] = (0.0, 0.0)
     loss: float = 0.0
     label: str = ""
+    name: str = ""
+    part_number: str = ""
 
     def only(self, source: str) -> "PartModel":
         """This model with every source but one (``tolerance``, ``drift``, ``aging``, ``loss``) set to nothing."""
@@ -112,6 +118,8 @@ class PartModel:
             self.aging if source == "aging" else (0.0, 0.0),
             self.loss if source == "loss" else 0.0,
             self.label,
+            self.name,
+            self.part_number,
         )
 
 

@@ -21,13 +21,28 @@ def wiring_text(combos: Combos, i: int) -> str:
     return joiner.join(parts)
 
 
-def _position(combos: Combos, i: int, unit_key: str) -> dict:
-    return {
+def _position(combos: Combos, i: int, unit_key: str, models=None) -> dict:
+    out = {
         unit_key: float(combos.value[i]),
         "arrangement": ARRANGEMENTS[int(combos.wiring[i])],
         f"parts_{unit_key}": combos.parts_of(i),
         "text": wiring_text(combos, i),
     }
+    if models is not None:
+        out["parts_detail"] = [part_detail(combos.kind, value, model) for value, model in zip(out[f"parts_{unit_key}"], models)]
+    return out
+
+
+def part_detail(kind: str, value: float, model) -> dict:
+    """One physical part: value, tolerance band, TCR (R) or dielectric (C), part number."""
+    detail = {"value": value, "rkm": format_rkm(value, kind), "tolerance": list(model.tolerance)}
+    if kind == "resistance":
+        detail["tcr_ppm_per_c"] = [model.drift.cold[0] * 1e6, model.drift.cold[1] * 1e6] if model.drift.shared else None
+        detail["technology"] = model.name
+    else:
+        detail["dielectric"] = model.name
+    detail["part_number"] = model.part_number or None
+    return detail
 
 
 def target_dict(target: Target) -> dict:
@@ -68,8 +83,8 @@ def candidates(shortlist: Shortlist, target: Target, assessed=None) -> list[dict
             "value": float(value[k]),
             "error": float(value[k] / target.value - 1.0),
             "parts": int(shortlist.parts[k]),
-            "r": _position(shortlist.r, int(ri), "ohm"),
-            "c": _position(shortlist.c, int(ci), "farad"),
+            "r": _position(shortlist.r, int(ri), "ohm", assessed.r_models[k] if assessed is not None else None),
+            "c": _position(shortlist.c, int(ci), "farad", assessed.c_models[k] if assessed is not None else None),
         })
         if assessed is not None:
             rows[-1]["spread"] = spread_dict(assessed, k)

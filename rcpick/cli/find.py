@@ -4,15 +4,21 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from pathlib import Path
+
+import numpy as np
 import typer
 
 from rcpick import assess, combos, report, search, series
+from rcpick.cli import config as cfg
 from rcpick import target as targets
+from rcpick.cli import exportopts as xo
 from rcpick.cli import spreadopts as so
 from rcpick.cli.common import (check_format, console, one_of, print_csv, print_json, progress_reporter, quantity,
                                reports_errors, table, warn)
 from rcpick.errors import BadValue, ClashingOptions, UnknownName, Unreachable
 from rcpick.notation import format_si, parse_percent, parse_quantity
+from rcpick.stock import Stock
 
 EPILOG = """[bold]Examples[/bold]
 
@@ -55,9 +61,13 @@ C_DEFAULTS = PositionDefaults("capacitance", "E12", "100p", "10u")
 
 def build_position(
     defaults: PositionDefaults, letter: str, series_name: str | None, low_text: str | None,
-    high_text: str | None, max_parts: int | None, fix_text: str | None,
+    high_text: str | None, max_parts: int | None, fix_text: str | None, stock: Stock | None = None,
 ) -> tuple[combos.Combos, str]:
-    """Candidate set of one position and a one-line description of it."""
+    """Candidate set of one position and a one-line description of it.
+
+    Options left at None take the built-in defaults; with a stock file that
+    covers this kind of part, the stocked values replace the series.
+    """
     unit = "Ω" if defaults.kind == "resistance" else "F"
     if fix_text is not None:
         given = {f"--{letter}-series": series_name, f"--{letter}-min": low_text,
@@ -67,10 +77,6 @@ def build_position(
                 raise ClashingOptions(f"--fix-{letter} and {flag} cannot be used together: a fixed value is not searched")
         value = parse_quantity(fix_text, defaults.kind, option=f"--fix-{letter}")
         return combos.fixed(value, defaults.kind), f"fixed at {format_si(value, unit, 4, trim=True)}"
-    try:
-        chosen = series.get(series_name or defaults.series)
-    except UnknownName as error:
-        raise error.for_option(f"--{letter}-series") from None
     low = parse_quantity(low_text or defaults.low, defaults.kind, option=f"--{letter}-min")
     high = parse_quantity(high_text or defaults.high, defaults.kind, option=f"--{letter}-max")
     if low > high:
@@ -80,14 +86,22 @@ def build_position(
     parts = 2 if max_parts is None else max_parts
     if parts not in (1, 2):
         raise BadValue(f"must be 1 or 2 (most parts per position), got {parts}", option=f"--{letter}-parts")
+    span = f"{format_si(low, unit, trim=True)}…{format_si(high, unit, trim=True)}"
+    pairs = "singles" if parts == 1 else "singles and pairs"
+    if stock is not None and stock.covers(defaults.kind):
+        values = np.array(sorted(stock.by_value(defaults.kind, low, high)))
+        if len(values) == 0:
+            raise BadValue(f"{stock.path} has no usable {letter.upper()} row inside {span} "
+                           f"(--{letter}-min/--{letter}-max)", option="--stock")
+        return combos.build(values, defaults.kind, parts, low, high), f"{len(values)} stocked values {span}, {pairs}"
+    try:
+        chosen = series.get(series_name or defaults.series)
+    except UnknownName as error:
+        raise error.for_option(f"--{letter}-series") from None
     values = chosen.values(low, high)
     if len(values) == 0:
-        raise BadValue(
-            f"no {chosen.name} value lies in {format_si(low, unit, trim=True)}…{format_si(high, unit, trim=True)}",
-            option=f"--{letter}-min")
-    described = (f"{chosen.name} {format_si(low, unit, trim=True)}…{format_si(high, unit, trim=True)}, "
-                 f"{'singles' if parts == 1 else 'singles and pairs'}")
-    return combos.build(values, defaults.kind, parts, low, high), described
+        raise BadValue(f"no {chosen.name} value lies in {span}", option=f"--{letter}-min")
+    return combos.build(values, defaults.kind, parts, low, high), f"{chosen.name} {span}, {pairs}"
 
 
 def read_threshold(text: str, supply_v: float | None, falling: bool) -> float:
@@ -190,6 +204,7 @@ def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: st
 
 @reports_errors
 def command(
+    ctx: typer.Context,
     tau: str = typer.Option(None, "--tau", metavar="TIME", help="Target time constant R·C, e.g. 10ms.", rich_help_panel="Target (give one)"),
     cutoff: str = typer.Option(None, "--cutoff", metavar="FREQ", help="Target first-order corner frequency 1/(2πRC), e.g. 1.5kHz.", rich_help_panel="Target (give one)"),
     delay: str = typer.Option(None, "--delay", metavar="TIME", help="Target time from the step until the node crosses --threshold, e.g. 200ms.", rich_help_panel="Target (give one)"),
@@ -213,6 +228,9 @@ def command(
     rank: str = typer.Option("yield", "--rank", metavar="yield|error|spread", help="yield: highest yield (to 0.1 %) first, then fewer parts, then smaller |error|; error: smallest |nominal error|, then fewer parts, then lower R; spread: narrowest worst-case span."),
     top: int = typer.Option(10, "--top", metavar="N", help=f"How many candidates to list (1…{MAX_TOP})."),
     fmt: str = typer.Option("table", "--format", metavar="table|json|csv", help="Output: table, json or csv."),
+    stock: str = xo.STOCK, out: str = xo.OUT, sheet: str = xo.SHEET, order: str = xo.ORDER,
+    boards: int = xo.BOARDS, spares: str = xo.SPARES, force: bool = xo.FORCE, plot: str = xo.PLOT,
+    config: Path = cfg.CONFIG_OPTION,
 ) -> None:
     """Find the standard R and C values (single parts or pairs) that best hit a timing target.
 
@@ -225,15 +243,33 @@ def command(
         raise BadValue(f"unknown ranking {rank!r}; accepted: {', '.join(RANKINGS)}", option="--rank", value=rank)
     if not 1 <= top <= MAX_TOP:
         raise BadValue(f"must be between 1 and {MAX_TOP}, got {top}", option="--top", value=top)
+    xo.check_outputs(out, sheet, plot, force)
+    xo.order_settings(boards, spares)
     target = build_target(tau, cutoff, delay, threshold, supply, falling)
-    r_set, r_desc = build_position(R_DEFAULTS, "r", r_series, r_min, r_max, r_parts, fix_r)
-    c_set, c_desc = build_position(C_DEFAULTS, "c", c_series, c_min, c_max, c_parts, fix_c)
+    stocked = xo.load_stock(stock)
+    # Project defaults never clash with --fix-r/--fix-c: only what was typed does.
+    typed = {name: value if cfg.from_command_line(ctx, name) else None
+             for name, value in dict(r_series=r_series, r_min=r_min, r_max=r_max, r_parts=r_parts,
+                                     c_series=c_series, c_min=c_min, c_max=c_max, c_parts=c_parts).items()}
+    if fix_r is None:
+        typed.update(r_series=r_series, r_min=r_min, r_max=r_max, r_parts=r_parts)
+    if fix_c is None:
+        typed.update(c_series=c_series, c_min=c_min, c_max=c_max, c_parts=c_parts)
+    r_set, r_desc = build_position(R_DEFAULTS, "r", typed["r_series"], typed["r_min"], typed["r_max"],
+                                   typed["r_parts"], fix_r, stocked)
+    c_set, c_desc = build_position(C_DEFAULTS, "c", typed["c_series"], typed["c_min"], typed["c_max"],
+                                   typed["c_parts"], fix_c, stocked)
     settings = so.read_spread_options(
         r_series=r_series, r_tol=r_tol, r_tcr=r_tcr, r_tech=r_tech, c_tol=c_tol, dielectric=dielectric, c_tc=c_tc,
         c_bias_loss=c_bias_loss, c_age=c_age, temp=temp, window=window, threshold_tol=threshold_tol, dist=dist,
         samples=samples, seed=seed, delay_target=target.kind == "delay")
+    r_stocked = np.unique(np.concatenate([r_set.part_a, r_set.part_b[~np.isnan(r_set.part_b)]]))
+    c_stocked = np.unique(np.concatenate([c_set.part_a, c_set.part_b[~np.isnan(c_set.part_b)]]))
     cond = assess.Conditions(settings.r_model, settings.c_model, settings.temp_c, settings.window,
-                             settings.threshold_band, settings.dist, settings.samples, settings.seed)
+                             settings.threshold_band, settings.dist, settings.samples, settings.seed,
+                             xo.stock_models(stocked, "resistance", r_stocked, settings.r_model, settings),
+                             xo.stock_models(stocked, "capacitance", c_stocked, settings.c_model, settings))
+    warnings = settings.warnings + xo.stock_warnings(stocked, c_stocked, settings.temp_c)
     notes = []
     pool_info = None
     if rank == "error":
@@ -253,13 +289,21 @@ def command(
     mc_count = len(candidates) if rank == "yield" else min(top, len(candidates))
     with progress_reporter(assess.evaluations(mc_count, cond), "Monte Carlo") as step:
         assessed = assess.assess(candidates, target, cond, rank, top, progress=step)
-    analysis = {"rank": rank, "pool": pool_info, "settings": settings.as_dict()}
-    document = report.find_document(candidates, target, assessed, analysis, settings.warnings)
+    analysis = {"rank": rank, "pool": pool_info, "settings": settings.as_dict(),
+                "stock": stocked.path if stocked else None}
+    document = report.find_document(candidates, target, assessed, analysis, warnings)
     if fmt == "json":
         print_json(document)
     elif fmt == "csv":
-        for message in settings.warnings:
+        for message in warnings:
             warn(message)
         print_csv(report.flat_rows(document))
     else:
         render_table(document, target, r_desc, c_desc, notes)
+    xo.write_outputs(document, out=out, sheet=sheet, order=order, boards=boards, spares=spares, force=force,
+                     stock=stocked, provenance_rows=xo.provenance(ctx, settings.seed), quiet=fmt != "table")
+    if plot is not None:
+        from rcpick.plot import shortlist_png
+
+        shortlist_png(document, Path(plot), force)
+        typer.echo(f"Wrote {plot}", err=fmt != "table")

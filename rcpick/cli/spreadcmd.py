@@ -2,11 +2,15 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 import typer
 
 from rcpick import assess, report, spread
 from rcpick import target as targets
+from rcpick.cli import config as cfg
+from rcpick.cli import exportopts as xo
 from rcpick.cli import spreadopts as so
 from rcpick.cli.common import check_format, console, print_json, progress_reporter, reports_errors, table
 from rcpick.cli.find import build_target, percent_text, target_line
@@ -55,6 +59,7 @@ def histogram_lines(counts: np.ndarray, edges: np.ndarray, marks: dict[str, floa
 
 @reports_errors
 def command(
+    ctx: typer.Context,
     r: str = typer.Option(..., "--r", metavar="PARTS", help="Resistor position: 4k7, 4k7+330 (series) or 10k//10k (parallel; || too)."),
     c: str = typer.Option(..., "--c", metavar="PARTS", help="Capacitor position: 100n, 47n+47n (series) or 47n//47n (parallel)."),
     tau: str = typer.Option(None, "--tau", metavar="TIME", help="Target time constant; without a target the spread is of tau, relative to nominal.", rich_help_panel="Target (optional)"),
@@ -68,11 +73,16 @@ def command(
     c_bias_loss: str = so.C_BIAS_LOSS, c_age: str = so.C_AGE, temp: str = so.TEMP, window: str = so.WINDOW,
     threshold_tol: str = so.THRESHOLD_TOL, dist: str = so.DIST, samples: int = so.SAMPLES, seed: int = so.SEED,
     fmt: str = typer.Option("table", "--format", metavar="table|json", help="Output: table or json."),
+    stock: str = xo.STOCK, out: str = xo.OUT, sheet: str = xo.SHEET, boards: int = xo.BOARDS,
+    spares: str = xo.SPARES, force: bool = xo.FORCE, plot: str = xo.PLOT, config: Path = cfg.CONFIG_OPTION,
 ) -> None:
     """Analyse one design: worst case, Monte Carlo spread, yield, and what each source contributes."""
     check_format(fmt)
     if fmt == "csv":
         raise BadValue("spread prints table or json", option="--format", value=fmt)
+    xo.check_outputs(out, sheet, plot, force)
+    xo.order_settings(boards, spares)
+    stocked = xo.load_stock(stock)
     r_set = _design(r, "resistance", "--r")
     c_set = _design(c, "capacitance", "--c")
     nominal_tau = float(r_set.value[0] * c_set.value[0])
@@ -82,8 +92,13 @@ def command(
         r_series=None, r_tol=r_tol, r_tcr=r_tcr, r_tech=r_tech, c_tol=c_tol, dielectric=dielectric, c_tc=c_tc,
         c_bias_loss=c_bias_loss, c_age=c_age, temp=temp, window=window if has_target else None,
         threshold_tol=threshold_tol, dist=dist, samples=samples, seed=seed, delay_target=target.kind == "delay")
+    r_parts = [v for v in (r_set.part_a[0], r_set.part_b[0]) if not np.isnan(v)]
+    c_parts = [v for v in (c_set.part_a[0], c_set.part_b[0]) if not np.isnan(v)]
     cond = assess.Conditions(settings.r_model, settings.c_model, settings.temp_c, settings.window,
-                             settings.threshold_band, settings.dist, settings.samples, settings.seed)
+                             settings.threshold_band, settings.dist, settings.samples, settings.seed,
+                             xo.stock_models(stocked, "resistance", r_parts, settings.r_model, settings),
+                             xo.stock_models(stocked, "capacitance", c_parts, settings.c_model, settings))
+    warnings = settings.warnings + xo.stock_warnings(stocked, c_parts, settings.temp_c)
     shortlist = Shortlist(r_set, c_set, np.array([0]), np.array([0]))
     study = assess.study(shortlist, target, cond)
     worst_min, worst_max = (float(v[0]) for v in spread.worst_case(study))
@@ -98,7 +113,8 @@ def command(
     nominal = float(study.nominal[0])
     document = {
         "schema": report.SCHEMA_VERSION,
-        "design": {"r": _design_dict(r_set, "ohm"), "c": _design_dict(c_set, "farad")},
+        "design": {"r": report._position(r_set, 0, "ohm", study.r.models[0]),
+                   "c": report._position(c_set, 0, "farad", study.c.models[0])},
         "target": report.target_dict(target) if has_target else None,
         "quantity": target.kind if has_target else "tau",
         "unit": target.unit,
@@ -115,7 +131,8 @@ def command(
         "temperatures_c": mc.temperatures_c.tolist(),
         "reference_c": mc.reference_c,
         "settings": settings.as_dict(),
-        "warnings": settings.warnings,
+        "warnings": warnings,
+        "stock": stocked.path if stocked else None,
     }
     if has_target:
         document["target"]["window"] = {"low": window_abs[0], "high": window_abs[1]}
@@ -124,11 +141,23 @@ def command(
         print_json(document)
     else:
         render(document, target, has_target, settings)
+    xo.write_outputs(as_shortlist(document), out=out, sheet=sheet, order=None, boards=boards, spares=spares,
+                     force=force, stock=stocked, provenance_rows=xo.provenance(ctx, settings.seed), quiet=fmt != "table")
+    if plot is not None:
+        from rcpick.plot import spread_png
+
+        spread_png(document, Path(plot), force)
+        typer.echo(f"Wrote {plot}", err=fmt != "table")
 
 
-def _design_dict(combos: Combos, unit_key: str) -> dict:
-    d = report._position(combos, 0, unit_key)
-    return d
+def as_shortlist(doc: dict) -> dict:
+    """The analysed design as a one-candidate shortlist document, for export."""
+    r, c = doc["design"]["r"], doc["design"]["c"]
+    candidate = {"rank": 1, "r": r, "c": c, "tau_s": doc["tau_s"], "value": doc["nominal"],
+                 "error": doc.get("error", 0.0), "parts": len(r["parts_ohm"]) + len(c["parts_farad"]),
+                 "spread": {k: v for k, v in doc["spread"].items()}}
+    target = doc["target"] or {"kind": "tau", "value": doc["nominal"], "unit": "s", "tau_s": doc["tau_s"]}
+    return {"target": target, "unit": doc["unit"], "candidates": [candidate]}
 
 
 def render(doc: dict, target: targets.Target, has_target: bool, settings) -> None:

@@ -52,6 +52,8 @@ class SpreadSettings:
     samples: int
     seed: int
     warnings: list[str] = field(default_factory=list)
+    aging_hours: float | None = None
+    loss: float = 0.0
 
     def as_dict(self) -> dict:
         """Settings for JSON output and provenance."""
@@ -91,7 +93,8 @@ def read_spread_options(
         lo, hi = parse_ppm_band(r_tcr, option="--r-tcr")
         r_drift, tech_label = models.linear(lo, hi), "custom TCR"
     r_band = _tolerance(r_tol, "--r-tol") if r_tol is not None else _series_tolerance(r_series)
-    r_model = models.PartModel(r_band, r_drift, label=f"{_pct_text(r_band)}, {tech_label} {r_drift.text}")
+    r_name = "custom TCR" if r_tcr is not None else (r_tech or DEFAULT_R_TECH)
+    r_model = models.PartModel(r_band, r_drift, label=f"{_pct_text(r_band)}, {tech_label} {r_drift.text}", name=r_name)
 
     # Capacitor
     try:
@@ -125,7 +128,8 @@ def read_spread_options(
         label += f", bias loss {loss * 100:g} %"
     if c_age is not None:
         label += f", ageing {aging[0] * 100:+.2g}…{aging[1] * 100:+.2g} %"
-    c_model = models.PartModel(c_band, c_drift, aging, loss, label)
+    c_model = models.PartModel(c_band, c_drift, aging, loss, label,
+                               name=diel.code if c_tc is None else f"{diel.code}, custom coefficient")
     if diel.poor_for_timing:
         warnings.append(diel.poor_for_timing)
 
@@ -155,7 +159,8 @@ def read_spread_options(
     chosen_seed = DEFAULT_SEED if seed is None else seed
     if chosen_seed < 0:
         raise BadValue(f"must be 0 or more, got {seed}", option="--seed", value=seed)
-    return SpreadSettings(r_model, c_model, diel, temp_c, win, threshold_band, chosen_dist, n, chosen_seed, warnings)
+    return SpreadSettings(r_model, c_model, diel, temp_c, win, threshold_band, chosen_dist, n, chosen_seed, warnings,
+                          hours if c_age is not None else None, loss)
 
 
 def _series_tolerance(name: str | None) -> tuple[float, float]:
