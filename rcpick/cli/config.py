@@ -46,7 +46,7 @@ def _int_range(low: int, high: int) -> Callable[[int], None]:
 
 
 def _exists(value: str) -> None:
-    if not Path(value).is_file():
+    if value != "demo" and not Path(value).is_file():
         raise BadValue(f"no file {value!r}")
 
 
@@ -105,13 +105,13 @@ def read(path: Path) -> dict[str, object]:
         if not isinstance(value, kind) or isinstance(value, bool):
             raise BadValue(f"{path}: key {key!r} must be a {'string' if kind is str else 'whole number'}, "
                            f"got {value!r}", option="--config")
+        if key == "stock" and not Path(value).is_absolute() and value != "demo":
+            value = str((path.parent / value).resolve())
         try:
             check(value)
         except (RcpickError, ValueError) as error:
             message = error.message if isinstance(error, RcpickError) else str(error)
             raise BadValue(f"{path}: key {key!r}: {message}", option="--config") from None
-        if key == "stock":
-            value = str((path.parent / value).resolve()) if not Path(value).is_absolute() else value
         out[param_name(key)] = value
     return out
 

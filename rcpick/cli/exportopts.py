@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import datetime
 import shlex
-import sys
 from pathlib import Path
 
 import typer
@@ -117,10 +116,28 @@ def _check_writable(path: Path, force: bool, option: str) -> None:
         raise BadValue(f"cannot write {path}: folder {parent} does not exist", option=option, value=str(path))
 
 
+def command_line(ctx: typer.Context) -> str:
+    """The command as typed, rebuilt from the options given on the command line (in declaration order)."""
+    words = ["rcpick", ctx.info_name or ""]
+    for param in ctx.command.params:
+        if cfg.source_of(ctx, param.name) != "command line":
+            continue
+        value = ctx.params.get(param.name)
+        flag = max(param.opts, key=len) if param.opts else param.name
+        if not flag.startswith("-"):
+            words.append(str(value))
+        elif isinstance(value, bool):
+            if value:
+                words.append(flag)
+        elif value is not None:
+            words += [flag, str(value)]
+    return shlex.join(words)
+
+
 def provenance(ctx: typer.Context, seed: int, extra: list[tuple[str, object, str]] = ()) -> list[tuple[str, object, str]]:
     """Rows of the ``query`` sheet: version, command line, date, seed and every setting with its source."""
     rows = [("rcpick version", __version__, "rcpick"),
-            ("command line", shlex.join(["rcpick", *sys.argv[1:]]) if sys.argv else "", "rcpick"),
+            ("command line", command_line(ctx), "rcpick"),
             ("date", datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds"), "rcpick"),
             ("seed used", seed, "rcpick")]
     rows += [(f"target: {name}", value, cfg.source_of(ctx, name)) for name, value in ctx.params.items()
@@ -130,6 +147,13 @@ def provenance(ctx: typer.Context, seed: int, extra: list[tuple[str, object, str
     config_path = ctx.meta.get("rcpick.config")
     rows.append(("config file", config_path or "none", "rcpick"))
     return rows
+
+
+def check_order(order: str | None, out: str | None, count: int) -> None:
+    """--order needs --out, and every rank it names must be listed."""
+    if order is not None and out is None:
+        raise ClashingOptions("--order needs --out FILE (it picks the candidates for the order sheet)")
+    parse_order(order, count)
 
 
 def write_outputs(document: dict, *, out: str | None, sheet: str | None, order: str | None, boards: int | None,

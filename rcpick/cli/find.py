@@ -292,6 +292,7 @@ def command(
     analysis = {"rank": rank, "pool": pool_info, "settings": settings.as_dict(),
                 "stock": stocked.path if stocked else None}
     document = report.find_document(candidates, target, assessed, analysis, warnings)
+    xo.check_order(order, out, len(document["candidates"]))
     if fmt == "json":
         print_json(document)
     elif fmt == "csv":
