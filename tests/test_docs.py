@@ -26,7 +26,8 @@ def test_readme_has_examples():
 
 
 @pytest.mark.parametrize("command", _examples())
-def test_readme_example_runs(run, command):
+def test_readme_example_runs(run, command, tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)  # examples may write files
     result = run(*shlex.split(command)[1:])
     assert result.exit_code == 0, result.output
     assert result.stdout.strip()
