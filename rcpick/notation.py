@@ -41,6 +41,7 @@ UNITS: dict[str, tuple[str, tuple[str, ...]]] = {
     "time": ("s", ("s", "sec")),
     "frequency": ("Hz", ("Hz", "hz", "HZ")),
     "voltage": ("V", ("V", "v")),
+    "current": ("A", ("A",)),
 }
 
 EXAMPLES: dict[str, str] = {
@@ -49,6 +50,7 @@ EXAMPLES: dict[str, str] = {
     "time": "10ms, 2.5s, 1e-3",
     "frequency": "1.5kHz, 159Hz",
     "voltage": "3.3V, 12.97V, 10kV",
+    "current": "1mA, 10uA",
 }
 
 _RKM_LETTERS: dict[str, dict[str, int]] = {

@@ -5,7 +5,7 @@ from __future__ import annotations
 import typer
 
 from rcpick import __version__
-from rcpick.cli import configcmd, find, spreadcmd, values
+from rcpick.cli import configcmd, find, net, spreadcmd, values
 
 CAUTION = (
     "Estimates only: verify every timing on real hardware before relying on it. "
@@ -42,6 +42,7 @@ def _root(
 app.command("find", epilog=find.EPILOG)(find.command)
 app.command("spread", epilog=spreadcmd.EPILOG)(spreadcmd.command)
 app.command("values", epilog=values.EPILOG)(values.command)
+app.command("net", epilog=net.EPILOG)(net.command)
 app.command("config", epilog=configcmd.EPILOG)(configcmd.command)
 
 
