@@ -52,13 +52,19 @@ def shortlist_rows(document: dict) -> list[dict]:
     unit = document.get("unit") or target.get("unit", "s")
     rows = []
     for cand in document["candidates"]:
-        row = {"rank": cand["rank"], "R wiring": cand["r"]["text"], "C wiring": cand["c"]["text"]}
+        row = {"rank": cand["rank"]}
+        for pos, sym in (("r", "R"), ("c", "C")):
+            if pos in cand:
+                row[f"{sym} wiring"] = cand[pos]["text"]
         for pos, sym, unit_sym, key, kind in (("r", "R", "Ω", "ohm", "resistance"), ("c", "C", "F", "farad", "capacitance")):
+            if pos not in cand:
+                continue
             details = _details(cand, pos, key)
             for k in range(2):
                 row.update(_part_columns(f"{sym}{k + 1}", details[k] if k < len(details) else None, kind))
             row[f"{sym} eff ({unit_sym})"] = cand[pos][key]
-        row["tau (s)"] = cand["tau_s"]
+        if "tau_s" in cand:
+            row["tau (s)"] = cand["tau_s"]
         row[f"nominal ({unit})"] = cand["value"]
         row["error (fraction)"] = cand["error"]
         sp = cand.get("spread", {})
@@ -83,6 +89,8 @@ def order_rows(document: dict, picks: list[int], boards: int, spares: float, sto
     for rank in picks:
         cand = by_rank[rank]
         for pos, kind, key in (("r", "resistance", "ohm"), ("c", "capacitance", "farad")):
+            if pos not in cand:
+                continue
             for d in _details(cand, pos, key):
                 tol = tuple(d.get("tolerance") or ())
                 tcr = tuple(d.get("tcr_ppm_per_c") or ())

@@ -298,7 +298,7 @@ def step_response(net: Netlist, values: dict[str, np.ndarray] | None = None, bat
     return Response(st, particular, coeff, found, start)
 
 
-def crossing_time(resp: Response, node: str, level: np.ndarray, horizon: np.ndarray, steps: int = 600) -> np.ndarray:
+def crossing_time(resp: Response, node: str, level: np.ndarray, horizon: np.ndarray, steps: int = 160) -> np.ndarray:
     """First time (s) the node's voltage reaches ``level`` (V, per network), NaN if it never does.
 
     Searched on a grid from 0 to ``horizon`` (s) then refined by bisection; 0 when the node starts at or past it.
@@ -316,7 +316,7 @@ def crossing_time(resp: Response, node: str, level: np.ndarray, horizon: np.ndar
     first = np.argmax(crossed, axis=1)
     lo = t[np.arange(batch), np.maximum(first - 1, 0)]
     hi = t[np.arange(batch), first]
-    for _ in range(80):
+    for _ in range(56):
         mid = (lo + hi) / 2
         vm = resp.node(node, mid[:, None])[:, 0] - level
         same = np.sign(vm) == start_sign

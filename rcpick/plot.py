@@ -95,8 +95,8 @@ def shortlist_png(document: dict, path: Path, force: bool = False) -> None:
         ax.axvspan(window["low"] * factor, window["high"] * factor, color="#40a040", alpha=0.12, label="window")
     ax.axvline(target["value"] * factor, color="black", linestyle=":", linewidth=1)
     ax.set_yticks(range(len(cands)))
-    ax.set_yticklabels([f"{c['rank']}. {c['r']['text']} | {c['c']['text']} ({c['spread']['yield'] * 100:.0f} %)"
-                        for c in reversed(cands)])
+    ax.set_yticklabels([f"{c['rank']}. {' | '.join(c[p]['text'] for p in ('r', 'c') if p in c)} "
+                        f"({c['spread']['yield'] * 100:.0f} %)" for c in reversed(cands)])
     ax.set_xlabel(f"{target['kind']} ({label})")
     ax.set_title(f"Shortlist for {target['kind']} = {format_si(target['value'], target['unit'])}")
     ax.legend(loc="lower right", fontsize=8)

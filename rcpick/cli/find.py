@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 import typer
 
-from rcpick import assess, combos, report, search, series
+from rcpick import assess, combos, export, report, search, series
 from rcpick.cli import config as cfg
 from rcpick import target as targets
 from rcpick.cli import exportopts as xo
@@ -231,6 +231,9 @@ def command(
     stock: str = xo.STOCK, out: str = xo.OUT, sheet: str = xo.SHEET, order: str = xo.ORDER,
     boards: int = xo.BOARDS, spares: str = xo.SPARES, force: bool = xo.FORCE, plot: str = xo.PLOT,
     config: Path = cfg.CONFIG_OPTION,
+    net: str = typer.Option(None, "--net", metavar="FILE", help="Search inside a network: a netlist of R, C, V, I lines (see rcpick net).", rich_help_panel="Network"),
+    vary: str = typer.Option(None, "--vary", metavar="NAMES", help="With --net: the elements to search, e.g. R1,C1 (one R and/or one C); the others keep their values.", rich_help_panel="Network"),
+    node: str = typer.Option(None, "--node", metavar="NODE", help="With --net and --delay or --cutoff: the node whose response is timed.", rich_help_panel="Network"),
 ) -> None:
     """Find the standard R and C values (single parts or pairs) that best hit a timing target.
 
@@ -245,7 +248,18 @@ def command(
         raise BadValue(f"must be between 1 and {MAX_TOP}, got {top}", option="--top", value=top)
     xo.check_outputs(out, sheet, plot, force)
     xo.order_settings(boards, spares)
-    target = build_target(tau, cutoff, delay, threshold, supply, falling)
+    if net is None and (vary is not None or node is not None):
+        raise ClashingOptions(f"{'--vary' if vary is not None else '--node'} belongs to --net FILE")
+    if net is not None:
+        for flag, value in (("--fix-r", fix_r), ("--fix-c", fix_c)):
+            if value is not None:
+                raise ClashingOptions(f"--net and {flag} cannot be used together: elements not in --vary keep their netlist values")
+    if net is None:
+        target = build_target(tau, cutoff, delay, threshold, supply, falling)
+    else:
+        from rcpick.cli import findnet
+
+        target = findnet.build_target(tau, cutoff, delay, threshold)
     stocked = xo.load_stock(stock)
     # Project defaults never clash with --fix-r/--fix-c: only what was typed does.
     typed = {name: value if cfg.from_command_line(ctx, name) else None
@@ -263,6 +277,26 @@ def command(
         r_series=r_series, r_tol=r_tol, r_tcr=r_tcr, r_tech=r_tech, c_tol=c_tol, dielectric=dielectric, c_tc=c_tc,
         c_bias_loss=c_bias_loss, c_age=c_age, temp=temp, window=window, threshold_tol=threshold_tol, dist=dist,
         samples=samples, seed=seed, delay_target=target.kind == "delay")
+    if net is not None:
+        document = findnet.run(net_file=net, vary=vary, target=target, node=node, threshold=threshold, supply=supply,
+                               falling=falling, positions={"r": r_set, "c": c_set}, settings=settings,
+                               stocked=stocked, rank=rank, top=top, threshold_tol=threshold_tol,
+                               samples_given=samples is not None)
+        xo.check_order(order, out, len(document["candidates"]))
+        if fmt == "json":
+            print_json(document)
+        elif fmt == "csv":
+            print_csv(export.shortlist_rows(document))
+        else:
+            findnet.render(document)
+        xo.write_outputs(document, out=out, sheet=sheet, order=order, boards=boards, spares=spares, force=force,
+                         stock=stocked, provenance_rows=xo.provenance(ctx, settings.seed), quiet=fmt != "table")
+        if plot is not None:
+            from rcpick.plot import shortlist_png
+
+            shortlist_png(document, Path(plot), force)
+            typer.echo(f"Wrote {plot}", err=fmt != "table")
+        return
     r_stocked = np.unique(np.concatenate([r_set.part_a, r_set.part_b[~np.isnan(r_set.part_b)]]))
     c_stocked = np.unique(np.concatenate([c_set.part_a, c_set.part_b[~np.isnan(c_set.part_b)]]))
     cond = assess.Conditions(settings.r_model, settings.c_model, settings.temp_c, settings.window,
