@@ -1,6 +1,7 @@
 """Every ``rcpick`` example in README.md runs and exits 0, so the README cannot drift from the code."""
 
 import re
+import shutil
 import shlex
 from pathlib import Path
 
@@ -27,7 +28,8 @@ def test_readme_has_examples():
 
 @pytest.mark.parametrize("command", _examples())
 def test_readme_example_runs(run, command, tmp_path, monkeypatch):
-    monkeypatch.chdir(tmp_path)  # examples may write files
+    shutil.copytree(README.parent / "docs" / "examples", tmp_path / "docs" / "examples")
+    monkeypatch.chdir(tmp_path)  # examples may write files; they find the demo netlists here
     result = run(*shlex.split(command)[1:])
     assert result.exit_code == 0, result.output
     assert result.stdout.strip()

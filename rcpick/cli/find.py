@@ -123,8 +123,12 @@ def read_threshold(text: str, supply_v: float | None, falling: bool) -> float:
         raise error.for_option("--threshold") from None
 
 
-def build_target(tau, cutoff, delay, threshold, supply, falling) -> targets.Target:
-    """The target from the target options (exactly one kind)."""
+def build_target(tau, cutoff, delay, threshold, supply, falling, *, in_network: bool = False) -> targets.Target:
+    """The target from the target options (exactly one kind).
+
+    ``in_network``: a delay's threshold is read later against the network's own node (``findnet``),
+    so it is only required here, and --supply/--falling are left to the network search to reject.
+    """
     kind = one_of({"--tau": tau, "--cutoff": cutoff, "--delay": delay}, "target")
     if kind != "--delay":
         for flag, value in (("--threshold", threshold), ("--supply", supply), ("--falling", falling or None)):
@@ -137,6 +141,8 @@ def build_target(tau, cutoff, delay, threshold, supply, falling) -> targets.Targ
     if threshold is None:
         raise ClashingOptions("--delay needs --threshold (0.7, 70% or a voltage with --supply)")
     delay_s = quantity(delay, "time", "--delay")
+    if in_network:
+        return targets.Target("delay", delay_s, "s", float("nan"))
     supply_v = quantity(supply, "voltage", "--supply")
     return targets.for_delay(delay_s, read_threshold(threshold, supply_v, falling), falling)
 
@@ -254,12 +260,7 @@ def command(
         for flag, value in (("--fix-r", fix_r), ("--fix-c", fix_c)):
             if value is not None:
                 raise ClashingOptions(f"--net and {flag} cannot be used together: elements not in --vary keep their netlist values")
-    if net is None:
-        target = build_target(tau, cutoff, delay, threshold, supply, falling)
-    else:
-        from rcpick.cli import findnet
-
-        target = findnet.build_target(tau, cutoff, delay, threshold)
+    target = build_target(tau, cutoff, delay, threshold, supply, falling, in_network=net is not None)
     stocked = xo.load_stock(stock)
     # Project defaults never clash with --fix-r/--fix-c: only what was typed does.
     typed = {name: value if cfg.from_command_line(ctx, name) else None
@@ -278,6 +279,8 @@ def command(
         c_bias_loss=c_bias_loss, c_age=c_age, temp=temp, window=window, threshold_tol=threshold_tol, dist=dist,
         samples=samples, seed=seed, delay_target=target.kind == "delay")
     if net is not None:
+        from rcpick.cli import findnet
+
         document = findnet.run(net_file=net, vary=vary, target=target, node=node, threshold=threshold, supply=supply,
                                falling=falling, positions={"r": r_set, "c": c_set}, settings=settings,
                                stocked=stocked, rank=rank, top=top, threshold_tol=threshold_tol,

@@ -40,22 +40,6 @@ def parse_vary(text: str | None, net: Netlist) -> list[str]:
     return [e.name for e in found]
 
 
-def build_target(tau, cutoff, delay, threshold):
-    """The target of a network search; a delay's threshold is read against the network (see quantity_for)."""
-    from rcpick import target as targets
-    from rcpick.cli.common import one_of, quantity
-
-    kind = one_of({"--tau": tau, "--cutoff": cutoff, "--delay": delay}, "target")
-    if kind == "--tau":
-        return targets.for_tau(quantity(tau, "time", "--tau"))
-    if kind == "--cutoff":
-        return targets.for_cutoff(quantity(cutoff, "frequency", "--cutoff"))
-    if threshold is None:
-        raise ClashingOptions("--delay needs --threshold (0.7 or 70% of the node's final value, or a voltage)")
-    value = quantity(delay, "time", "--delay")
-    return targets.Target("delay", value, "s", float("nan"))
-
-
 def quantity_for(target, node: str | None, threshold: str | None, supply, falling, net: Netlist) -> netsearch.Quantity:
     """What to measure on the network for the target options."""
     if supply is not None or falling:
