@@ -23,7 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from rcpick import network
-from rcpick.combos import PARALLEL, SERIES, SINGLE, Combos, parallel_value, series_value
+from rcpick.combos import SERIES, SINGLE, Combos, parallel_value, series_value
 from rcpick.errors import BadValue, Unreachable
 from rcpick.models import ROOM_C, PartModel
 from rcpick.netlist import Netlist
@@ -330,6 +330,3 @@ def design_parts(net: Netlist, shortlist: NetShortlist, row: int, model_for) -> 
             wiring[e.name] = SINGLE
     return parts, wiring
 
-
-__all__ = ["Quantity", "Varied", "NetShortlist", "search", "spread_of", "design_parts", "temperatures",
-           "corner_frequency", "ENUMERATION_CAP", "PARALLEL"]

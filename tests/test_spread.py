@@ -83,6 +83,8 @@ def test_gum_uniform_sigma():
     draws = next(spread._draw_chunks(200_000, 7, "uniform"))
     assert np.std(draws.tolerance[0]) * a == pytest.approx(a / math.sqrt(3), rel=0.01)
     mc = spread.monte_carlo(study, 200_000, 7, "uniform", window=(1e-3 * 0.97, 1e-3 * 1.03))
+    # the Monte Carlo σ of tau itself: a/√3 of nominal; the σ estimate's own error is about 0.2 % here
+    assert mc.sigma[0] == pytest.approx(1e-3 * a / math.sqrt(3), rel=0.01)
     # P(|δ| ≤ 3 %) = 0.6 for δ uniform on ±5 %; binomial σ = √(0.24/200 000) ≈ 0.0011.
     assert mc.yield_[0] == pytest.approx(0.6, abs=0.005)
     assert mc.p_low[0] == pytest.approx(1e-3 * (1 - a + 2 * a * 0.00135), rel=2e-4)

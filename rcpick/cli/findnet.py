@@ -7,11 +7,11 @@ import numpy as np
 from rcpick import models, netsearch
 from rcpick import stock as stocks
 from rcpick.cli.common import console, progress_reporter, table
-from rcpick.cli.net import threshold_volts  # noqa: F401  (same threshold rules as `rcpick net`)
+from rcpick.cli.net import read_level
 from rcpick.combos import ARRANGEMENTS
 from rcpick.errors import BadValue, ClashingOptions
 from rcpick.netlist import Netlist, read
-from rcpick.notation import format_si, parse_percent, parse_quantity
+from rcpick.notation import format_si
 from rcpick.report import SCHEMA_VERSION, part_detail, wiring_text
 
 #: Candidates given a spread analysis when ranking a network search by yield or spread.
@@ -56,13 +56,8 @@ def quantity_for(target, node: str | None, threshold: str | None, supply, fallin
         raise BadValue(f"no node {node!r} in {net.path}; nodes: {', '.join(net.nodes)}", option="--node", value=node)
     if target.kind == "cutoff":
         return netsearch.Quantity("cutoff", node)
-    stripped = threshold.strip()
-    if stripped[-1:] in ("V", "v"):
-        return netsearch.Quantity("delay", node, parse_quantity(stripped, "voltage", option="--threshold", positive=False), True)
-    fraction = parse_percent(stripped, option="--threshold") if stripped.endswith("%") else float(stripped)
-    if not 0 < fraction < 1:
-        raise BadValue(f"a fractional threshold must lie strictly between 0 and 1, got {fraction:g}", option="--threshold")
-    return netsearch.Quantity("delay", node, fraction, False)
+    level, is_volts = read_level(threshold)
+    return netsearch.Quantity("delay", node, level, is_volts)
 
 
 def model_maker(settings, stocked: stocks.Stock | None, varied: set[str]):

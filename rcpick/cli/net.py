@@ -25,12 +25,11 @@ M (milli) is not used. [bold]Caution[/bold]: estimates only; verify on hardware.
 """
 
 
-def threshold_volts(text: str, v0: float, v_final: float) -> float:
-    """``--threshold`` as volts: ``2.0V``, or a fraction/percent of the node's final value
-    (of its value just after the step when it decays towards 0)."""
+def read_level(text: str) -> tuple[float, bool]:
+    """``--threshold`` for a network node: (volts, True) for ``2.0V``, (fraction, False) for ``0.7`` or ``70%``."""
     stripped = text.strip()
     if stripped[-1:] in ("V", "v"):
-        return parse_quantity(stripped, "voltage", option="--threshold", positive=False)
+        return parse_quantity(stripped, "voltage", option="--threshold", positive=False), True
     try:
         fraction = parse_percent(stripped, option="--threshold") if stripped.endswith("%") else float(stripped)
     except ValueError:
@@ -38,8 +37,17 @@ def threshold_volts(text: str, v0: float, v_final: float) -> float:
                        value=text) from None
     if not 0 < fraction < 1:
         raise BadValue(f"a fractional threshold must lie strictly between 0 and 1, got {fraction:g}", option="--threshold")
+    return fraction, False
+
+
+def threshold_volts(text: str, v0: float, v_final: float) -> float:
+    """``--threshold`` as volts: ``2.0V``, or a fraction/percent of the node's final value
+    (of its value just after the step when it decays towards 0)."""
+    level, is_volts = read_level(text)
+    if is_volts:
+        return level
     reference = v_final if abs(v_final) >= abs(v0) else v0
-    return fraction * reference
+    return level * reference
 
 
 def node_step(net: Netlist, node: str, threshold: str | None) -> dict:

@@ -16,7 +16,7 @@ from rcpick.cli.common import check_format, console, print_json, progress_report
 from rcpick.cli.find import build_target, percent_text, target_line
 from rcpick.combos import ARRANGEMENTS, Combos
 from rcpick.errors import BadValue
-from rcpick.notation import format_rkm, format_si, parse_arrangement
+from rcpick.notation import format_si, parse_arrangement
 from rcpick.search import Shortlist
 
 EPILOG = """[bold]Examples[/bold]
