@@ -158,7 +158,10 @@ def search(net: Netlist, varied: list[Varied], quantity: Quantity, target_value:
     if quantity.kind == "tau":
         inner = int(np.argmax(sizes))
         others = [k for k in range(len(varied)) if k != inner]
-        outer = np.array(list(itertools.product(*[range(sizes[k]) for k in others])), dtype=np.intp).reshape(-1, len(others))
+        if others:
+            outer = np.array(list(itertools.product(*[range(sizes[k]) for k in others])), dtype=np.intp)
+        else:
+            outer = np.zeros((1, 0), dtype=np.intp)  # one varied element: a single bisection
         if len(outer) > ENUMERATION_CAP:
             raise BadValue(f"{len(outer):,} combinations of the other varied elements is too many; narrow their ranges",
                            option="--vary")

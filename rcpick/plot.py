@@ -99,5 +99,6 @@ def shortlist_png(document: dict, path: Path, force: bool = False) -> None:
                         f"({c['spread']['yield'] * 100:.0f} %)" for c in reversed(cands)])
     ax.set_xlabel(f"{target['kind']} ({label})")
     ax.set_title(f"Shortlist for {target['kind']} = {format_si(target['value'], target['unit'])}")
-    ax.legend(loc="lower right", fontsize=8)
+    height = 0.45 * len(cands) + 1.6
+    ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.5 / height), ncol=4, fontsize=8, frameon=False)
     _save(fig, path, force)

@@ -54,6 +54,19 @@ def test_tau_search_in_a_first_order_network(run_json):
     assert abs(doc["candidates"][0]["error"]) < 1e-4
 
 
+@pytest.mark.parametrize("target_args", [["--tau", "5ms"], ["--delay", "8ms", "--threshold", "2.0V", "--node", "rst"]])
+def test_one_varied_element(run_json, target_args):
+    doc = run_json("find", "--net", "docs/examples/reset-divider.cir", "--vary", "C1", *target_args, "--top", "4",
+                   "--samples", "200", "--rank", "error")
+    assert all(set(c["elements"]) == {"C1"} and "r" not in c for c in doc["candidates"])
+    errors = [abs(c["error"]) for c in doc["candidates"]]
+    assert errors == sorted(errors) and errors[0] < 0.01
+    # with R1 = 47k fixed the dominant tau is (47k ∥ 220k)·C1
+    if target_args[0] == "--tau":
+        best = doc["candidates"][0]
+        assert best["value"] == pytest.approx(47e3 * 220e3 / 267e3 * best["c"]["farad"], rel=1e-9)
+
+
 def test_cutoff_at_a_node(run_json):
     doc = run_json("find", "--net", "docs/examples/two-stage.cir", "--vary", "R2,C2", "--cutoff", "1kHz", "--node",
                    "out", "--r-parts", "1", "--c-parts", "1", "--rank", "error", "--top", "2", "--samples", "200")
