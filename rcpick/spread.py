@@ -34,7 +34,8 @@ import numpy as np
 
 from rcpick.combos import PARALLEL, SERIES, SINGLE, parallel_value, series_value
 from rcpick.models import ROOM_C, PartModel
-from rcpick.target import Target, delay_factor
+from rcpick.errors import BadValue
+from rcpick.target import Target
 
 #: Normal distribution: the band is ±3σ, truncated at the band.
 SIGMAS_IN_BAND = 3.0
@@ -135,9 +136,11 @@ class Threshold:
         return np.log(1.0 / f) if self.falling else np.log(1.0 / (1.0 - f))
 
     def check(self) -> None:
+        """The threshold must stay strictly inside (0, 1) of the step over its whole band."""
         lo, hi = self.fraction * (1 + self.band[0]), self.fraction * (1 + self.band[1])
-        delay_factor(lo, self.falling)
-        delay_factor(hi, self.falling)
+        if not (0 < lo and hi < 1):
+            raise BadValue(f"the threshold {self.fraction:.6g} of the step spread by {self.band[0]:+.1%}…{self.band[1]:+.1%} "
+                           f"leaves (0, 1): {lo:.4g}…{hi:.4g}; narrow --threshold-tol", option="--threshold-tol")
 
 
 @dataclass(frozen=True)

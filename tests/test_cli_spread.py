@@ -113,3 +113,10 @@ def test_bad_design_text(run):
     assert result.exit_code == 2 and "--r" in result.stderr
     result = run("spread", "--r", "10k", "--c", "100nF//abc")
     assert result.exit_code == 2 and "--c" in result.stderr
+
+
+def test_threshold_band_must_stay_inside_the_step(run):
+    for base in (["find"], ["spread", "--r", "10k", "--c", "100n"]):
+        result = run(*base, "--delay", "1ms", "--threshold", "0.99", "--threshold-tol", "5%")
+        assert result.exit_code == 2
+        assert result.stderr.startswith("rcpick: error: --threshold-tol:") and "leaves (0, 1)" in result.stderr
