@@ -1,23 +1,31 @@
 """Write small SPICE netlists for rcpick's candidates and run them in ngspice (batch mode).
 
 Source of the check: ngspice (Debian package ``ngspice``, 39.x), a circuit
-simulator independent of rcpick. ``.ci/run`` installs it; a missing ngspice
-fails these tests instead of skipping them.
+simulator independent of rcpick. ``.ci/run`` installs it and sets CI, where a
+missing ngspice fails these tests; on a developer's machine without it they
+are skipped with the reason shown.
 """
 
 from __future__ import annotations
 
+import os
 import re
 import shutil
 import subprocess
 from pathlib import Path
 
+import pytest
+
 LEAK_OHM = 1e15  # gives the node between two series capacitors a DC path; negligible in time
 
 
 def ngspice() -> str:
+    """Path of ngspice. Missing ngspice fails under CI (CI set, as .ci/run does) and skips, with the reason, elsewhere."""
     path = shutil.which("ngspice")
-    assert path, "ngspice is required for the external checks (apt-get install -y ngspice; .ci/run does this)"
+    if path is None:
+        if os.environ.get("CI"):
+            pytest.fail("ngspice is required for the external checks in CI (apt-get install -y ngspice; .ci/run does this)")
+        pytest.skip("ngspice not installed: apt-get install -y ngspice to run the simulator cross-checks")
     return path
 
 
