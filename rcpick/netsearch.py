@@ -258,7 +258,7 @@ def spread_of(net: Netlist, parts_by_element: dict[str, list[NetPart]], wiring: 
 
     Returns dict with worst_min, worst_max, p_low, p_median, p_high, sigma, yield (target's unit).
     """
-    from rcpick.spread import P_HIGH, P_LOW, _band_draws
+    from rcpick.spread import P_HIGH, P_LOW, band_draws
 
     flat = [p for parts in parts_by_element.values() for p in parts]
     kinds = {name: ("resistance" if name[0].upper() == "R" else "capacitance") for name in parts_by_element}
@@ -283,7 +283,7 @@ def spread_of(net: Netlist, parts_by_element: dict[str, list[NetPart]], wiring: 
     mc_temps = temperature_grid(temp_c)
     mx = mc_temps - ROOM_C
     rng = np.random.default_rng(seed)
-    z = {kind: _band_draws(rng, (len(flat), samples), dist) for kind in ("tol", "cold", "hot", "age")}
+    z = {kind: band_draws(rng, (len(flat), samples), dist) for kind in ("tol", "cold", "hot", "age")}
     factors = {}
     for i, part in enumerate(flat):
         m = part.model

@@ -21,7 +21,7 @@ def wiring_text(combos: Combos, i: int) -> str:
     return joiner.join(parts)
 
 
-def _position(combos: Combos, i: int, unit_key: str, models=None) -> dict:
+def position_dict(combos: Combos, i: int, unit_key: str, models=None) -> dict:
     out = {
         unit_key: float(combos.value[i]),
         "arrangement": ARRANGEMENTS[int(combos.wiring[i])],
@@ -83,8 +83,8 @@ def candidates(shortlist: Shortlist, target: Target, assessed=None) -> list[dict
             "value": float(value[k]),
             "error": float(value[k] / target.value - 1.0),
             "parts": int(shortlist.parts[k]),
-            "r": _position(shortlist.r, int(ri), "ohm", assessed.r_models[k] if assessed is not None else None),
-            "c": _position(shortlist.c, int(ci), "farad", assessed.c_models[k] if assessed is not None else None),
+            "r": position_dict(shortlist.r, int(ri), "ohm", assessed.r_models[k] if assessed is not None else None),
+            "c": position_dict(shortlist.c, int(ci), "farad", assessed.c_models[k] if assessed is not None else None),
         })
         if assessed is not None:
             rows[-1]["spread"] = spread_dict(assessed, k)

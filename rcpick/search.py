@@ -135,7 +135,8 @@ def best(r: Combos, c: Combos, target: Target, top: int = 10, chunk: int = 4096)
 POOL_CAP = 60
 
 
-def _subset(combos: Combos, mask: np.ndarray) -> tuple[Combos, np.ndarray]:
+def subset(combos: Combos, mask: np.ndarray) -> tuple[Combos, np.ndarray]:
+    """The candidates where ``mask`` holds, and their indices in ``combos``."""
     index = np.flatnonzero(mask)
     sub = Combos(combos.kind, combos.value[index], combos.wiring[index], combos.part_a[index], combos.part_b[index])
     return sub, index
@@ -176,8 +177,8 @@ def window_pool(r: Combos, c: Combos, target: Target, window: tuple[float, float
     groups: dict[int, list[tuple[np.ndarray, np.ndarray]]] = {2: [], 3: [], 4: []}
     for r_single in (True, False):
         for c_single in (True, False):
-            r_sub, r_index = _subset(r, (r.parts == 1) == r_single)
-            c_sub, c_index = _subset(c, (c.parts == 1) == c_single)
+            r_sub, r_index = subset(r, (r.parts == 1) == r_single)
+            c_sub, c_index = subset(c, (c.parts == 1) == c_single)
             if len(r_sub) == 0 or len(c_sub) == 0:
                 continue
             try:

@@ -287,7 +287,7 @@ def temperature_grid(temp_c: tuple[float, float], per_side: int = 1) -> np.ndarr
     return np.unique(np.array(points)) + ROOM_C
 
 
-def _band_draws(rng: np.random.Generator, shape: tuple[int, ...], dist: str) -> np.ndarray:
+def band_draws(rng: np.random.Generator, shape: tuple[int, ...], dist: str) -> np.ndarray:
     """Positions within a band, in [-1, 1]: uniform, or normal with the band at ±3σ, truncated."""
     if dist == "uniform":
         return rng.uniform(-1.0, 1.0, shape)
@@ -314,12 +314,12 @@ class Draws:
         return self.threshold.shape[0]
 
 
-def _draw_chunks(samples: int, seed: int | None, dist: str):
+def draw_chunks(samples: int, seed: int | None, dist: str):
     """Draws for every unit, chunk by chunk, from one seeded generator (same seed, same units)."""
     rng = np.random.default_rng(seed)
     for start in range(0, samples, CHUNK_UNITS):
         n = min(CHUNK_UNITS, samples - start)
-        yield Draws(*(_band_draws(rng, (4, n), dist) for _ in range(4)), _band_draws(rng, (n,), dist))
+        yield Draws(*(band_draws(rng, (4, n), dist) for _ in range(4)), band_draws(rng, (n,), dist))
 
 
 def _mid_half(band: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -426,7 +426,7 @@ def monte_carlo(
     for rows in _batches(study, batch):
         start = 0
         # The same seed gives the same units for every batch of designs (common random numbers).
-        for draws in _draw_chunks(samples, seed, dist):
+        for draws in draw_chunks(samples, seed, dist):
             n = draws.units
             per_tau = None
             if study.target.kind == "delay" and study.threshold is not None:

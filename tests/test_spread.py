@@ -80,7 +80,7 @@ def test_gum_uniform_sigma():
     # GUM (JCGM 100:2008 §4.3): a uniform band of half-width a has σ = a/√3.
     a = 0.05
     study = single_study(PartModel((-a, a)), NONE)
-    draws = next(spread._draw_chunks(200_000, 7, "uniform"))
+    draws = next(spread.draw_chunks(200_000, 7, "uniform"))
     assert np.std(draws.tolerance[0]) * a == pytest.approx(a / math.sqrt(3), rel=0.01)
     mc = spread.monte_carlo(study, 200_000, 7, "uniform", window=(1e-3 * 0.97, 1e-3 * 1.03))
     # the Monte Carlo σ of tau itself: a/√3 of nominal; the σ estimate's own error is about 0.2 % here
@@ -108,7 +108,7 @@ def test_product_of_two_uniforms_percentiles():
 
 
 def test_normal_band_is_three_sigma_truncated():
-    draws = next(spread._draw_chunks(200_000, 3, "normal")).tolerance[0]
+    draws = next(spread.draw_chunks(200_000, 3, "normal")).tolerance[0]
     assert np.abs(draws).max() <= 1.0
     # σ of a normal truncated at ±3σ is 0.98658·σ (property of the normal distribution).
     assert np.std(draws) == pytest.approx(0.98658 / 3, rel=0.01)

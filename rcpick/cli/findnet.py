@@ -100,7 +100,7 @@ def pooled_search(net, varied, quantity, target_value, size):
     import itertools
 
     from rcpick.errors import Unreachable
-    from rcpick.search import _subset
+    from rcpick.search import subset
 
     groups = list(itertools.product([True, False], repeat=len(varied)))
     share = max(1, size // len(groups))
@@ -108,7 +108,7 @@ def pooled_search(net, varied, quantity, target_value, size):
     for singles in groups:
         subsets, maps = [], []
         for v, single in zip(varied, singles):
-            sub, index = _subset(v.combos, (v.combos.parts == 1) == single)
+            sub, index = subset(v.combos, (v.combos.parts == 1) == single)
             subsets.append(netsearch.Varied(v.name, sub))
             maps.append(index)
         if any(len(s.combos) == 0 for s in subsets):

@@ -113,8 +113,8 @@ def command(
     nominal = float(study.nominal[0])
     document = {
         "schema": report.SCHEMA_VERSION,
-        "design": {"r": report._position(r_set, 0, "ohm", study.r.models[0]),
-                   "c": report._position(c_set, 0, "farad", study.c.models[0])},
+        "design": {"r": report.position_dict(r_set, 0, "ohm", study.r.models[0]),
+                   "c": report.position_dict(c_set, 0, "farad", study.c.models[0])},
         "target": report.target_dict(target) if has_target else None,
         "quantity": target.kind if has_target else "tau",
         "unit": target.unit,
