@@ -71,3 +71,11 @@ def test_voltage_threshold_rules():
     with pytest.raises(BadValue, match="below the supply"):
         targets.threshold_fraction(5.0, is_voltage=True, supply_v=5.0, falling=False)
     assert targets.threshold_fraction(2.5, is_voltage=True, supply_v=5.0, falling=False) == 0.5
+
+
+def test_bleeder_time_constant_bound():
+    # Derived from the IEC 60204-1 §6.2.4 summary (facts.md §8): 325 V must fall to 60 V within 5 s,
+    # so tau ≤ 5 / ln(325/60) = 2.959 s (0.592 s for 1 s).
+    fraction = targets.threshold_fraction(60.0, is_voltage=True, supply_v=325.0, falling=True)
+    assert targets.for_delay(5.0, fraction, falling=True).tau_s == pytest.approx(2.959, abs=5e-4)
+    assert targets.for_delay(1.0, fraction, falling=True).tau_s == pytest.approx(0.592, abs=5e-4)
