@@ -187,7 +187,7 @@ def render_table(document: dict, target: targets.Target, r_desc: str, c_desc: st
     columns = [("#", "right"), ("R", "left"), ("C", "left"), ("R eff", "right"), ("C eff", "right"), ("tau", "right")]
     if target.kind != "tau":
         columns.append((target.kind, "right"))
-    columns += [("error", "right"), ("worst case %", "right"), ("MC 99.73 % %", "right"), ("yield", "right"), ("parts", "right")]
+    columns += [("error", "right"), ("worst case, %", "right"), ("MC 99.73 %, %", "right"), ("yield", "right"), ("parts", "right")]
     grid = table(*columns)
     for cand in document["candidates"]:
         cells = [str(cand["rank"]), cand["r"]["text"], cand["c"]["text"],

@@ -211,7 +211,7 @@ def render(doc: dict) -> None:
     for message in doc["warnings"]:
         out.print(f"[yellow]Warning:[/yellow] {message}")
     columns = [("#", "right")] + [(name, "left") for name in n["vary"]] + [
-        (doc["network"]["quantity"], "right"), ("error", "right"), ("worst case %", "right"), ("MC 99.73 % %", "right"),
+        (doc["network"]["quantity"], "right"), ("error", "right"), ("worst case, %", "right"), ("MC 99.73 %, %", "right"),
         ("yield", "right"), ("parts", "right")]
     grid = table(*columns)
     for cand in doc["candidates"]:
