@@ -341,23 +341,36 @@ def _unit_values(pos: Position, rows: np.ndarray, draws: Draws, slots: tuple[int
     x_hot = np.maximum(x, 0.0)[None, :, None]
     values = []
     for k, slot in enumerate(slots[: 1 if wiring == SINGLE else 2]):
+        # When every design's part k has the same model (no stock file), its relative factor is the same
+        # array for all of them: compute it once and scale by each design's nominal value.
+        model_rows = slice(0, 1) if _same_model(pos, rows, k) else slice(None)
         zt, zc, zh, za = (d[slot][None, :] for d in (draws.tolerance, draws.cold, draws.hot, draws.aging))
-        zh = np.where(shared[:, k, None], zc, zh)
-        scale = (1 + tol_mid[:, k, None] + tol_half[:, k, None] * zt) * (1 + age_mid[:, k, None] + age_half[:, k, None] * za)
-        scale *= (1 - loss[:, k, None]) * parts[:, k, None]
-        slope_c = (cold_mid[:, k, None] + cold_half[:, k, None] * zc)[:, None, :]
-        slope_h = (hot_mid[:, k, None] + hot_half[:, k, None] * zh)[:, None, :]
+        zh = np.where(shared[model_rows, k, None], zc, zh)
+        scale = (1 + tol_mid[model_rows, k, None] + tol_half[model_rows, k, None] * zt)
+        scale = scale * (1 + age_mid[model_rows, k, None] + age_half[model_rows, k, None] * za)
+        scale *= 1 - loss[model_rows, k, None]
+        slope_c = (cold_mid[model_rows, k, None] + cold_half[model_rows, k, None] * zc)[:, None, :]
+        slope_h = (hot_mid[model_rows, k, None] + hot_half[model_rows, k, None] * zh)[:, None, :]
         factor = slope_c * x_cold
         factor += slope_h * x_hot
         factor += 1.0
         np.maximum(factor, FLOOR, out=factor)
         factor *= scale[:, None, :]
-        values.append(factor)
+        values.append(factor * parts[:, k, None, None])
     if wiring == SINGLE:
         return values[0]
     a, b = values
     adds = (wiring == SERIES) == (pos.kind == "resistance")
     return a + b if adds else a * b / (a + b)
+
+
+def _same_model(pos: Position, rows: np.ndarray, k: int) -> bool:
+    """Whether part k of every design in ``rows`` has the same model parameters."""
+    for field in ("tolerance", "aging", "cold", "hot", "shared", "loss"):
+        values = pos.params(field)[rows, k]
+        if not np.all(values == values[:1]):
+            return False
+    return True
 
 
 def _batches(study: Study, batch: int) -> list[np.ndarray]:

@@ -148,3 +148,20 @@ def test_contributions():
     assert shares["bias loss"] > 0 and shares["ageing"] == 0 and shares["threshold"] == 0
     only = spread.contributions(single_study(PartModel((-0.01, 0.01)), NONE))[0]
     assert only["R tolerance"] == pytest.approx(1.0)
+
+
+def test_designs_in_one_batch_match_each_alone():
+    # Common random numbers: a design's Monte Carlo figures do not depend on the others in its batch,
+    # whether the batch's parts share one model or not.
+    tight = PartModel((-0.01, 0.01), models.linear(-25e-6, 25e-6))
+    loose = PartModel((-0.05, 0.05), models.linear(-200e-6, 200e-6))
+    cap = PartModel((-0.1, 0.1), models.dielectric("X7R").drift)
+    r_all = spread.Position.of("resistance", [[10e3], [4.7e3], [22e3]], [SINGLE] * 3, [[tight, tight], [loose, loose], [tight, tight]])
+    c_all = spread.Position.of("capacitance", [[100e-9], [220e-9], [47e-9]], [SINGLE] * 3, cap)
+    both = spread.monte_carlo(spread.Study(r_all, c_all, (0, 70), targets.for_tau(1e-3)), 3000, 5)
+    for m in range(3):
+        r_one = spread.Position(r_all.kind, r_all.parts[m:m + 1], r_all.wiring[m:m + 1], r_all.models[m:m + 1])
+        c_one = spread.Position(c_all.kind, c_all.parts[m:m + 1], c_all.wiring[m:m + 1], c_all.models[m:m + 1])
+        alone = spread.monte_carlo(spread.Study(r_one, c_one, (0, 70), targets.for_tau(1e-3)), 3000, 5)
+        assert (alone.p_low[0], alone.p_median[0], alone.p_high[0]) == pytest.approx(
+            (both.p_low[m], both.p_median[m], both.p_high[m]), rel=1e-12)
