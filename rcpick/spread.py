@@ -343,12 +343,15 @@ def _unit_values(pos: Position, rows: np.ndarray, draws: Draws, slots: tuple[int
     for k, slot in enumerate(slots[: 1 if wiring == SINGLE else 2]):
         # When every design's part k has the same model (no stock file), its relative factor is the same
         # array for all of them: compute it once and scale by each design's nominal value.
-        model_rows = slice(0, 1) if _same_model(pos, rows, k) else slice(None)
+        shared_model = len(rows) > 1 and _same_model(pos, rows, k)
+        model_rows = slice(0, 1) if shared_model else slice(None)
         zt, zc, zh, za = (d[slot][None, :] for d in (draws.tolerance, draws.cold, draws.hot, draws.aging))
         zh = np.where(shared[model_rows, k, None], zc, zh)
         scale = (1 + tol_mid[model_rows, k, None] + tol_half[model_rows, k, None] * zt)
         scale = scale * (1 + age_mid[model_rows, k, None] + age_half[model_rows, k, None] * za)
         scale *= 1 - loss[model_rows, k, None]
+        if not shared_model:
+            scale *= parts[:, k, None]
         slope_c = (cold_mid[model_rows, k, None] + cold_half[model_rows, k, None] * zc)[:, None, :]
         slope_h = (hot_mid[model_rows, k, None] + hot_half[model_rows, k, None] * zh)[:, None, :]
         factor = slope_c * x_cold
@@ -356,7 +359,7 @@ def _unit_values(pos: Position, rows: np.ndarray, draws: Draws, slots: tuple[int
         factor += 1.0
         np.maximum(factor, FLOOR, out=factor)
         factor *= scale[:, None, :]
-        values.append(factor * parts[:, k, None, None])
+        values.append(factor * parts[:, k, None, None] if shared_model else factor)
     if wiring == SINGLE:
         return values[0]
     a, b = values
@@ -436,10 +439,12 @@ def monte_carlo(
     refs = np.empty((m, samples))
     counts = np.zeros(bins, dtype=np.int64) if histogram_range is not None else None
     edges = np.linspace(*histogram_range, bins + 1) if histogram_range is not None else None
+    # The same seed gives the same units for every batch of designs (common random numbers); a run that
+    # fits in one chunk draws them once, a longer one draws them again per batch to keep memory bounded.
+    cached = list(draw_chunks(samples, seed, dist)) if samples <= CHUNK_UNITS else None
     for rows in _batches(study, batch):
         start = 0
-        # The same seed gives the same units for every batch of designs (common random numbers).
-        for draws in draw_chunks(samples, seed, dist):
+        for draws in cached if cached is not None else draw_chunks(samples, seed, dist):
             n = draws.units
             per_tau = None
             if study.target.kind == "delay" and study.threshold is not None:
