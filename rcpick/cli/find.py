@@ -285,21 +285,30 @@ def command(
                                falling=falling, positions={"r": r_set, "c": c_set}, settings=settings,
                                stocked=stocked, rank=rank, top=top, threshold_tol=threshold_tol,
                                samples_given=samples is not None)
-        xo.check_order(order, out, len(document["candidates"]))
-        if fmt == "json":
-            print_json(document)
-        elif fmt == "csv":
-            print_csv(export.shortlist_rows(document))
-        else:
-            findnet.render(document)
-        xo.write_outputs(document, out=out, sheet=sheet, order=order, boards=boards, spares=spares, force=force,
-                         stock=stocked, provenance_rows=xo.provenance(ctx, settings.seed), quiet=fmt != "table")
-        if plot is not None:
-            from rcpick.plot import shortlist_png
+        show, csv_rows = (lambda: findnet.render(document)), export.shortlist_rows
+    else:
+        document, notes = plain_search(r_set, c_set, target, settings, stocked, rank, top)
+        show, csv_rows = (lambda: render_table(document, target, r_desc, c_desc, notes)), report.flat_rows
+    xo.check_order(order, out, len(document["candidates"]))
+    if fmt == "json":
+        print_json(document)
+    elif fmt == "csv":
+        for message in document["warnings"]:
+            warn(message)
+        print_csv(csv_rows(document))
+    else:
+        show()
+    xo.write_outputs(document, out=out, sheet=sheet, order=order, boards=boards, spares=spares, force=force,
+                     stock=stocked, provenance_rows=xo.provenance(ctx, settings.seed), quiet=fmt != "table")
+    if plot is not None:
+        from rcpick.plot import shortlist_png
 
-            shortlist_png(document, Path(plot), force)
-            typer.echo(f"Wrote {plot}", err=fmt != "table")
-        return
+        shortlist_png(document, Path(plot), force)
+        typer.echo(f"Wrote {plot}", err=fmt != "table")
+
+
+def plain_search(r_set, c_set, target, settings, stocked, rank: str, top: int) -> tuple[dict, list[str]]:
+    """Search one R and one C position, analyse the spread, rank: the JSON document and notes for the table."""
     r_stocked = np.unique(np.concatenate([r_set.part_a, r_set.part_b[~np.isnan(r_set.part_b)]]))
     c_stocked = np.unique(np.concatenate([c_set.part_a, c_set.part_b[~np.isnan(c_set.part_b)]]))
     cond = assess.Conditions(settings.r_model, settings.c_model, settings.temp_c, settings.window,
@@ -328,20 +337,4 @@ def command(
         assessed = assess.assess(candidates, target, cond, rank, top, progress=step)
     analysis = {"rank": rank, "pool": pool_info, "settings": settings.as_dict(),
                 "stock": stocked.path if stocked else None}
-    document = report.find_document(candidates, target, assessed, analysis, warnings)
-    xo.check_order(order, out, len(document["candidates"]))
-    if fmt == "json":
-        print_json(document)
-    elif fmt == "csv":
-        for message in warnings:
-            warn(message)
-        print_csv(report.flat_rows(document))
-    else:
-        render_table(document, target, r_desc, c_desc, notes)
-    xo.write_outputs(document, out=out, sheet=sheet, order=order, boards=boards, spares=spares, force=force,
-                     stock=stocked, provenance_rows=xo.provenance(ctx, settings.seed), quiet=fmt != "table")
-    if plot is not None:
-        from rcpick.plot import shortlist_png
-
-        shortlist_png(document, Path(plot), force)
-        typer.echo(f"Wrote {plot}", err=fmt != "table")
+    return report.find_document(candidates, target, assessed, analysis, warnings), notes
