@@ -1,11 +1,21 @@
 """Shared helpers for the command-line tests."""
 
 import json
+from pathlib import Path
 
 import pytest
 from typer.testing import CliRunner
 
 from rcpick.cli import app
+
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+@pytest.fixture(autouse=True)
+def _at_project_root(monkeypatch):
+    """Tests name demo files (docs/examples/…) from the project root, wherever pytest was started."""
+    monkeypatch.chdir(ROOT)
 
 
 @pytest.fixture
