@@ -69,7 +69,7 @@ class Quantity:
         if self.level_is_volts:
             level = np.full(batch, self.level)
         else:
-            level = self.level * np.where(np.abs(v_final) >= np.abs(v0), v_final, v0)
+            level = network.fractional_level(self.level, v0, v_final)
         if level_scale is not None:
             level = level * level_scale
         horizon = HORIZON_TAUS * np.where(tau > 0, tau, 1.0)

@@ -298,6 +298,13 @@ def step_response(net: Netlist, values: dict[str, np.ndarray] | None = None, bat
     return Response(st, particular, coeff, found, start)
 
 
+def fractional_level(fraction, v0, v_final):
+    """Volts for a threshold given as a fraction: of the node's final value, or of its value just after
+    the step when it decays towards 0 (whichever is larger in size). Works on scalars and arrays."""
+    v0, v_final = np.asarray(v0, dtype=float), np.asarray(v_final, dtype=float)
+    return fraction * np.where(np.abs(v_final) >= np.abs(v0), v_final, v0)
+
+
 def crossing_time(resp: Response, node: str, level: np.ndarray, horizon: np.ndarray, steps: int = 160) -> np.ndarray:
     """First time (s) the node's voltage reaches ``level`` (V, per network), NaN if it never does.
 

@@ -46,8 +46,7 @@ def threshold_volts(text: str, v0: float, v_final: float) -> float:
     level, is_volts = read_level(text)
     if is_volts:
         return level
-    reference = v_final if abs(v_final) >= abs(v0) else v0
-    return level * reference
+    return float(network.fractional_level(level, v0, v_final))
 
 
 def node_step(net: Netlist, node: str, threshold: str | None) -> dict:
