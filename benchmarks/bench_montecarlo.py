@@ -12,7 +12,7 @@ import time
 
 import numpy as np
 
-from rcpick import models, spread
+from rcpick import models, variation
 from rcpick import target as targets
 from rcpick.combos import PARALLEL, SERIES, SINGLE
 from rcpick.models import PartModel
@@ -21,20 +21,20 @@ R_MODEL = PartModel((-0.01, 0.01), models.linear(-100e-6, 100e-6))
 C_MODEL = PartModel((-0.10, 0.10), models.dielectric("X7R").drift, aging=(-0.04, -0.01))
 
 
-def study(designs: int, rng: np.random.Generator) -> spread.Study:
+def study(designs: int, rng: np.random.Generator) -> variation.Study:
     wiring_r = rng.choice([SINGLE, SERIES, PARALLEL], designs)
     wiring_c = rng.choice([SINGLE, SERIES, PARALLEL], designs)
-    r = spread.Position.of("resistance", [[10e3, 4.7e3]] * designs, wiring_r, R_MODEL)
-    c = spread.Position.of("capacitance", [[100e-9, 47e-9]] * designs, wiring_c, C_MODEL)
-    return spread.Study(r, c, (-40, 85), targets.for_tau(1e-3))
+    r = variation.Position.of("resistance", [[10e3, 4.7e3]] * designs, wiring_r, R_MODEL)
+    c = variation.Position.of("capacitance", [[100e-9, 47e-9]] * designs, wiring_c, C_MODEL)
+    return variation.Study(r, c, (-40, 85), targets.for_tau(1e-3))
 
 
-def rate(the_study: spread.Study, samples: int, dist: str = "normal") -> tuple[float, float]:
+def rate(the_study: variation.Study, samples: int, dist: str = "normal") -> tuple[float, float]:
     """Best of three runs: (unit-evaluations per second, seconds)."""
     best = float("inf")
     for _ in range(3):
         start = time.perf_counter()
-        result = spread.monte_carlo(the_study, samples, 1, dist, window=(0.8e-3, 1.2e-3))
+        result = variation.monte_carlo(the_study, samples, 1, dist, window=(0.8e-3, 1.2e-3))
         best = min(best, time.perf_counter() - start)
     return result.evaluations / best, best
 
@@ -42,7 +42,7 @@ def rate(the_study: spread.Study, samples: int, dist: str = "normal") -> tuple[f
 def main() -> None:
     rng = np.random.default_rng(0)
     one = study(1, rng)
-    temps = len(spread.temperature_grid(one.temp_c))
+    temps = len(variation.temperature_grid(one.temp_c))
     for dist in ("normal", "uniform"):
         per_s, seconds = rate(one, 1_000_000, dist)
         print(f"one design, 1,000,000 units × {temps} temperatures, {dist}: {seconds:.2f} s, "
@@ -51,7 +51,7 @@ def main() -> None:
     per_s, seconds = rate(pool, 20_000)
     print(f"60 designs (a find pool), 20,000 units × {temps} temperatures: {seconds:.2f} s, {per_s / 1e6:.1f} M/s")
     start = time.perf_counter()
-    spread.worst_case(pool)
+    variation.worst_case(pool)
     print(f"worst case of 60 designs: {(time.perf_counter() - start) * 1e3:.1f} ms")
     for args in (["--rank", "error"], []):
         walls = []

@@ -1,42 +1,24 @@
-"""Spread of searched candidates, and ranking by yield, spread or error.
+"""Spread of searched candidates, and their order: joins the search to the spread engine and the ranking.
 
-Joins the search (``Shortlist`` of R and C candidates) to the spread engine:
-builds one :class:`~rcpick.spread.Study` for many candidates, runs the worst
-case and the Monte Carlo, and orders the candidates.
+Builds one :class:`~rcpick.variation.Study` for many candidates (each part with
+the model of its stock line, or the position's model), runs the worst case and
+the Monte Carlo, scores each candidate and orders them (:mod:`rcpick.ranking`).
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
 
-from rcpick import spread
-from rcpick.combos import Combos
+from rcpick import ranking, variation
+from rcpick.combos import Combos, contributor_move, subset
 from rcpick.models import PartModel
-from rcpick.search import ERROR_DECIMALS, Shortlist
+from rcpick.search import Shortlist
+from rcpick.specs import Conditions, Parts
 from rcpick.target import Target
-
-RANKINGS = ("yield", "error", "spread")
-#: Yields closer than this count as equal when ranking (0.1 %).
-YIELD_DECIMALS = 3
-
-
-@dataclass(frozen=True)
-class Conditions:
-    """How parts vary and where the design must work."""
-
-    r_model: PartModel
-    c_model: PartModel
-    temp_c: tuple[float, float]
-    window: tuple[float, float]  # relative to the target, e.g. (-0.1, 0.1)
-    threshold_band: tuple[float, float] = (0.0, 0.0)
-    dist: str = "uniform"
-    samples: int = 20000
-    seed: int | None = 1
-    r_models: dict[float, PartModel] | None = None  # per part value (stocked parts); others use r_model
-    c_models: dict[float, PartModel] | None = None
 
 
 @dataclass(frozen=True)
@@ -51,74 +33,139 @@ class Assessed:
     p_high: np.ndarray
     sigma: np.ndarray
     yield_: np.ndarray
-    window: tuple[float, float]  # absolute, target's unit
-    analysed: int  # candidates given a Monte Carlo run
-    r_models: list  # per candidate: the PartModel of each R part
-    c_models: list
-
-
-def _position(combos: Combos, index: np.ndarray, model: PartModel, by_value: dict[float, PartModel] | None) -> spread.Position:
-    parts = [combos.parts_of(int(i)) for i in index]
-    if by_value:
-        models = [[by_value.get(v, model) for v in values] + [model] * (2 - len(values)) for values in parts]
-        return spread.Position.of(combos.kind, parts, combos.wiring[index], models)
-    return spread.Position.of(combos.kind, parts, combos.wiring[index], model)
-
-
-def study(shortlist: Shortlist, target: Target, cond: Conditions) -> spread.Study:
-    """The spread study of every candidate in ``shortlist``."""
-    threshold = None
-    if target.kind == "delay":
-        threshold = spread.Threshold(target.threshold, target.falling, cond.threshold_band)
-        threshold.check()
-    return spread.Study(_position(shortlist.r, shortlist.r_index, cond.r_model, cond.r_models),
-                        _position(shortlist.c, shortlist.c_index, cond.c_model, cond.c_models), cond.temp_c, target,
-                        threshold)
+    yield_low: np.ndarray
+    yield_high: np.ndarray
+    never: np.ndarray
+    window: tuple[float, float]  # absolute, target's unit; an end is ±inf for a limit
+    analysed: int                # candidates given a Monte Carlo run
+    r_models: list[list[PartModel]]
+    c_models: list[list[PartModel]]
+    flags: list[list[str]]
+    samples: int
 
 
 def window_of(target: Target, window: tuple[float, float]) -> tuple[float, float]:
-    """Absolute acceptance window (target's unit) from a relative one."""
+    """Absolute acceptance window (target's unit) from a relative one (an infinite end stays infinite)."""
     return target.value * (1 + window[0]), target.value * (1 + window[1])
 
 
-def _take(shortlist: Shortlist, order: np.ndarray) -> Shortlist:
+def _position(combos: Combos, index: np.ndarray, parts: Parts) -> variation.Position:
+    values = [combos.parts_of(int(i)) for i in index]
+    models = [[parts.model_of(v) for v in vs] + [parts.model] * (2 - len(vs)) for vs in values]
+    return variation.Position.of(combos.kind, values, combos.wiring[index], models)
+
+
+def study(shortlist: Shortlist, target: Target, r: Parts, c: Parts, cond: Conditions) -> variation.Study:
+    """The spread study of every candidate in ``shortlist``."""
+    return variation.Study(_position(shortlist.r, shortlist.r_index, r), _position(shortlist.c, shortlist.c_index, c),
+                        cond.temp_c, target, cond.level_band)
+
+
+def useful(parts: Parts, combos: Combos | None = None) -> tuple[Combos, np.ndarray]:
+    """The candidates of a position whose pairs do something a single part cannot: the smaller
+    contributor moves the value by more than the parts' tolerance (docs/model.md)."""
+    found = parts.combos if combos is None else combos
+    move = contributor_move(found)
+    tol = np.array([max(_half(parts.model_of(a)), _half(parts.model_of(b)) if not math.isnan(b) else 0.0)
+                    for a, b in zip(found.part_a, found.part_b)])
+    return subset(found, move > tol)
+
+
+def _half(model: PartModel) -> float:
+    return max(-model.tolerance[0], model.tolerance[1])
+
+
+def _take(shortlist: Shortlist, order) -> Shortlist:
+    order = np.asarray(order, dtype=np.intp)
     return Shortlist(shortlist.r, shortlist.c, shortlist.r_index[order], shortlist.c_index[order])
 
 
-def assess(shortlist: Shortlist, target: Target, cond: Conditions, rank: str, top: int,
+def practical_flags(shortlist: Shortlist, r: Parts, c: Parts, kinds: tuple[str, str]) -> list[list[str]]:
+    """Per candidate, what lies outside its family's practical range (data/practical.toml)."""
+    from rcpick.notation import format_rkm
+
+    out = []
+    for ri, ci in zip(shortlist.r_index, shortlist.c_index):
+        flags = []
+        for combos, i, parts, family in ((shortlist.r, ri, r, kinds[0]), (shortlist.c, ci, c, kinds[1])):
+            low, high = parts.practical
+            odd = [v for v in combos.parts_of(int(i)) if not low * (1 - 1e-9) <= v <= high * (1 + 1e-9)]
+            if odd:
+                kind = combos.kind
+                text = ", ".join(format_rkm(v, kind) for v in odd)
+                out_range = f"{format_rkm(low, kind)}…{format_rkm(high, kind)}"
+                flags.append(f"{text} is outside the practical range of {family} parts ({out_range})")
+        out.append(flags)
+    return out
+
+
+def assess(shortlist: Shortlist, target: Target, r: Parts, c: Parts, cond: Conditions, rank: str, top: int, *,
+           families: tuple[str, str], min_yield: float = 0.0, stress=None,
            progress: Callable[[int], None] | None = None) -> Assessed:
     """Spread of the candidates, ranked, cut to ``top``.
 
-    ``rank`` is ``error`` (the shortlist's own order, already by |error|),
-    ``spread`` (narrowest worst-case span first; Monte Carlo only for the
-    ``top`` kept) or ``yield`` (Monte Carlo for every candidate, highest yield
-    to 0.1 % first). Ties: fewer parts, then smaller |error|, then lower R, C.
+    ``rank`` is ``error`` (the shortlist's own order, already by |error|; Monte Carlo for the listed
+    candidates only), ``spread`` (narrowest worst-case span first; Monte Carlo for the ``top`` kept),
+    ``yield`` or ``cost`` (Monte Carlo for every candidate). ``stress`` (optional) maps a study to per
+    candidate (sound, stress) arrays.
     """
     window = window_of(target, cond.window)
-    abs_err = np.round(np.abs(target.error(shortlist.tau_s)), ERROR_DECIMALS)
     if rank == "error":
         shortlist = _take(shortlist, np.arange(min(top, len(shortlist))))
     elif rank == "spread":
-        lo, hi = spread.worst_case(study(shortlist, target, cond))
-        order = np.lexsort((shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts,
-                            np.round((hi - lo) / target.value, 9)))
-        shortlist = _take(shortlist, order[:top])
-    elif rank != "yield":
-        raise ValueError(f"rank must be one of {RANKINGS}")
-    the_study = study(shortlist, target, cond)
-    lo, hi = spread.worst_case(the_study)
-    mc = spread.monte_carlo(the_study, cond.samples, cond.seed, cond.dist, window=window, progress=progress)
-    order = np.arange(len(shortlist))
-    if rank == "yield":
-        abs_err = np.round(np.abs(target.error(shortlist.tau_s)), ERROR_DECIMALS)
-        order = np.lexsort((shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts,
-                            -np.round(mc.yield_, YIELD_DECIMALS)))[:top]
-    return Assessed(_take(shortlist, order), lo[order], hi[order], mc.p_low[order], mc.p_median[order],
-                    mc.p_high[order], mc.sigma[order], mc.yield_[order], window, len(the_study.r),
-                    [the_study.r.models[i] for i in order], [the_study.c.models[i] for i in order])
+        lo, hi = variation.worst_case(study(shortlist, target, r, c, cond))
+        nominal = target.quantity(shortlist.r_ohm, shortlist.c_farad)
+        abs_err = np.round(np.abs(target.error(nominal)), ranking.ERROR_DECIMALS)
+        keys = np.lexsort((shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts,
+                           np.round((hi - lo) / nominal, 9)))
+        shortlist = _take(shortlist, keys[:top])
+    the_study = study(shortlist, target, r, c, cond)
+    lo, hi = variation.worst_case(the_study)
+    mc = variation.monte_carlo(the_study, cond.samples, cond.seed, cond.dist, window, lot_share=cond.lot_share,
+                            progress=progress)
+    assert mc.yield_ is not None and mc.yield_low is not None and mc.yield_high is not None
+    nominal = the_study.nominal
+    flags = practical_flags(shortlist, r, c, families)
+    sound = np.array([not f for f in flags], dtype=bool)
+    stress_share = np.full(len(shortlist), np.nan)
+    if stress is not None:
+        within, stress_share, extra = stress(the_study)
+        sound &= within
+        for k, more in enumerate(extra):
+            flags[k] += more
+    inside = (lo >= window[0] * (1 - 1e-12)) & (hi <= window[1] * (1 + 1e-12))
+    for k in range(len(shortlist)):
+        if not inside[k]:
+            flags[k].append("the worst case leaves the window" if target.limit is None else
+                            "the worst case does not meet the limit")
+    middle = math.sqrt(r.span[0] * r.span[1])
+    scores = ranking.Scores(
+        mc.yield_, mc.yield_low, mc.yield_high, shortlist.parts, (hi - lo) / nominal, inside,
+        np.abs(target.error(nominal)), np.abs(np.log(shortlist.r_ohm / middle)), shortlist.r_ohm,
+        shortlist.c_farad, sound, stress_share, cost_per_board(the_study, r, c))
+    if rank == "error":
+        order = list(range(len(shortlist)))
+    else:
+        order = ranking.order(scores, rank, limit=target.limit, min_yield=min_yield)[:top]
+    pick = np.array(order, dtype=np.intp)
+    return Assessed(_take(shortlist, pick), lo[pick], hi[pick], mc.p_low[pick], mc.p_median[pick],
+                    mc.p_high[pick], mc.sigma[pick], mc.yield_[pick], mc.yield_low[pick], mc.yield_high[pick],
+                    mc.never[pick], window, len(the_study.r), [the_study.r.models[i] for i in pick],
+                    [the_study.c.models[i] for i in pick], [flags[i] for i in pick], cond.samples)
 
 
-def evaluations(count: int, cond: Conditions) -> int:
-    """Unit-evaluations a Monte Carlo of ``count`` candidates will make (for progress bars)."""
-    return count * cond.samples * len(spread.temperature_grid(cond.temp_c))
-
+def cost_per_board(the_study: variation.Study, r: Parts, c: Parts) -> np.ndarray:
+    """Sum of the stocked unit prices of each design's parts (NaN when a part has no price)."""
+    out = np.full(len(the_study.r), np.nan)
+    for m in range(len(the_study.r)):
+        total = 0.0
+        for pos, parts in ((the_study.r, r), (the_study.c, c)):
+            count = 1 if pos.wiring[m] == 0 else 2
+            for k in range(count):
+                line = parts.lines.get(float(pos.parts[m, k]))
+                if line is None or line.unit_price is None:
+                    total = math.nan
+                    break
+                total += line.unit_price
+        out[m] = total
+    return out

@@ -126,3 +126,24 @@ def build(parts: np.ndarray, kind: str, max_parts: int, low: float, high: float)
 def fixed(value: float, kind: str) -> Combos:
     """A position held at exactly one value (standard or not)."""
     return Combos(kind, np.array([value]), np.array([SINGLE], dtype=np.int8), np.array([value]), np.array([np.nan]))
+
+
+def contributor_move(combos: Combos) -> np.ndarray:
+    """How far the smaller contributor of each pair moves the effective value (relative); inf for a single part.
+
+    Adding parts (series R, parallel C): b/a for a ≥ b. Harmonic parts (parallel R, series C): the
+    larger value contributes less, and removing it leaves the smaller one, a move of a/(a + b) for a ≤ b.
+    """
+    a = np.fmin(combos.part_a, combos.part_b)
+    b = np.fmax(combos.part_a, combos.part_b)
+    adds = (combos.wiring == SERIES) == (combos.kind == "resistance")
+    with np.errstate(invalid="ignore", divide="ignore"):
+        move = np.where(adds, a / b, a / (a + b))
+    return np.where(combos.wiring == SINGLE, np.inf, move)
+
+
+def subset(combos: Combos, mask: np.ndarray) -> tuple[Combos, np.ndarray]:
+    """The candidates where ``mask`` holds, and their indices in ``combos``."""
+    index = np.flatnonzero(mask)
+    sub = Combos(combos.kind, combos.value[index], combos.wiring[index], combos.part_a[index], combos.part_b[index])
+    return sub, index

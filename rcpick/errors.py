@@ -1,12 +1,28 @@
-"""Errors raised by rcpick's core.
+"""Errors raised by rcpick.
 
-Every error the user can cause is an :class:`RcpickError`; the command line
-catches that one class and prints it as a single line (exit code 2).
+Every error the user can cause is an :class:`RcpickError`. The core never
+names a command-line option or a Python parameter: it names the *setting*
+at fault (``setting="r_min"``) and may refer to other settings inside its
+message as ``{r_max}``. The layer that knows how the user spelled them fills
+the names in: the Python API as parameters (``r_min``), the command line as
+options (``--r-min``), a project file as its keys (``rcpick.toml: key 'r-min'``).
 Subclasses also inherit the matching builtin, so library callers can catch
 ``ValueError`` or ``LookupError`` as usual.
 """
 
 from __future__ import annotations
+
+import re
+from collections.abc import Callable
+
+Namer = Callable[[str], str]
+
+_PLACEHOLDER = re.compile(r"\{([a-z][a-z0-9_]*)\}")
+
+
+def parameter_name(setting: str) -> str:
+    """The Python API's name for a setting: the setting itself (``r_min``)."""
+    return setting
 
 
 class RcpickError(Exception):
@@ -15,26 +31,49 @@ class RcpickError(Exception):
     Parameters
     ----------
     message : str
-        What was wrong and what is accepted.
-    option : str, optional
-        The command-line option (or file position) at fault, e.g. ``"--tau"``.
+        What was wrong and what is accepted; ``{name}`` refers to another setting.
+    setting : str, optional
+        The setting at fault (snake_case, e.g. ``"r_min"``).
     value : object, optional
         The offending value, kept for callers.
     """
 
-    def __init__(self, message: str, *, option: str | None = None, value: object = None):
+    def __init__(self, message: str, *, setting: str | None = None, value: object = None):
         super().__init__(message)
         self.message = message
-        self.option = option
+        self.setting = setting
         self.value = value
+        #: Where the value came from when that is a file (``rcpick.toml``), set by the file reader.
+        self.origin: str | None = None
+        #: How the layer that reports the error spells setting names.
+        self.namer: Namer = parameter_name
+
+    def text(self, namer: Namer | None = None) -> str:
+        """The message with setting names spelled by ``namer`` (default: this error's own)."""
+        spell = namer or self.namer
+        return _PLACEHOLDER.sub(lambda m: spell(m.group(1)), self.message)
+
+    def where(self, namer: Namer | None = None) -> str | None:
+        """The prefix naming the culprit: a file key, an option or a parameter."""
+        if self.origin:
+            return self.origin
+        if self.setting:
+            return (namer or self.namer)(self.setting)
+        return None
+
+    def render(self, namer: Namer | None = None) -> str:
+        """One line: ``where: message``."""
+        where = self.where(namer)
+        body = self.text(namer)
+        return f"{where}: {body}" if where else body
 
     def __str__(self) -> str:
-        return f"{self.option}: {self.message}" if self.option else self.message
+        return self.render()
 
-    def for_option(self, option: str) -> "RcpickError":
-        """Return this error with ``option`` filled in, if it had none."""
-        if self.option is None:
-            self.option = option
+    def about(self, setting: str) -> "RcpickError":
+        """Return this error naming ``setting``, if it named none."""
+        if self.setting is None:
+            self.setting = setting
         return self
 
 
@@ -47,8 +86,12 @@ class UnknownName(RcpickError, LookupError):
 
 
 class ClashingOptions(RcpickError, ValueError):
-    """Two options that cannot be used together, or a required one missing."""
+    """Two settings that cannot be used together, or a required one missing."""
 
 
 class Unreachable(RcpickError, ValueError):
-    """No allowed combination of parts comes near the target."""
+    """No allowed combination of parts meets the request."""
+
+
+class NotReached(RcpickError, ValueError):
+    """A level that the node never reaches: the asked crossing does not exist."""

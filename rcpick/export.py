@@ -14,10 +14,8 @@ import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
-from rcpick.errors import BadValue
+from rcpick.errors import BadValue, ClashingOptions
 from rcpick.notation import format_rkm
-
-SHEETS = ("shortlist", "order", "query")
 
 #: Excel number formats by the unit named in a column header.
 _FORMATS = {"(Ω)": "##0.###E+0", "(F)": "##0.###E+0", "(Ω or F)": "##0.###E+0", "(s)": "##0.000E+0", "(Hz)": "##0.000E+0", "(V)": "0.##",
@@ -72,24 +70,27 @@ def shortlist_rows(document: dict) -> list[dict]:
                             ("p_median", "MC median"), ("p_high", "MC 99.865 %")):
             row[f"{label} ({unit})"] = sp.get(name)
         row["yield (fraction)"] = sp.get("yield")
+        ci = sp.get("yield_ci") or [None, None]
+        row["yield 95 % low (fraction)"], row["yield 95 % high (fraction)"] = ci
         row["parts"] = cand["parts"]
+        row["cost per board (each)"] = cand.get("cost_per_board")
+        row["notes"] = "; ".join(cand.get("flags", [])) or None
         rows.append(row)
     return rows
 
 
-def order_rows(document: dict, picks: list[int], boards: int, spares: float, stock=None) -> list[dict]:
+def order_rows(document: dict, picks: list[int], boards: int, spares: float) -> list[dict]:
     """One row per distinct part of the picked candidates (ranks), with quantities for ``boards``.
 
-    Total = ceil(quantity per board × boards × (1 + spares)). With a stock
-    (:class:`rcpick.stock.Stock`) the row carries its part number, price, stock
-    on hand and shortfall.
+    Total = ceil(quantity per board × boards × (1 + spares)). A part taken from a stock line carries its
+    part number, package, price, stock on hand and shortfall, from the line recorded in the result.
     """
     by_rank = {c["rank"]: c for c in document["candidates"]}
     lines: dict[tuple, dict] = {}
     for rank in picks:
         cand = by_rank[rank]
         for pos, kind, key in (("r", "resistance", "ohm"), ("c", "capacitance", "farad")):
-            if pos not in cand:
+            if pos not in cand or cand[pos] is None:
                 continue
             for d in _details(cand, pos, key):
                 tol = tuple(d.get("tolerance") or ())
@@ -102,32 +103,45 @@ def order_rows(document: dict, picks: list[int], boards: int, spares: float, sto
                     part = _part_columns("", d, kind)
                     line.update({name.strip(): v for name, v in part.items() if not name.startswith(" (")
                                  and "part number" not in name})
-                    line.update({"qty per board": 0, "used in ranks": [],
-                                 "_stock": stock.find(kind, d["value"]) if stock is not None else None})
+                    line.update({"qty per board": 0, "used in ranks": [], "_detail": d})
                     lines[ident] = line
                 line["qty per board"] += 1
                 if rank not in line["used in ranks"]:
                     line["used in ranks"].append(rank)
+    stocked = any((line["_detail"].get("stock") is not None) for line in lines.values())
     rows = []
     for line in lines.values():
-        stocked = line.pop("_stock")
+        detail = line.pop("_detail")
+        stock = detail.get("stock")
         total = math.ceil(line["qty per board"] * boards * (1 + spares) - 1e-9)
         row = {name: line.get(name) for name in ORDER_PART_COLUMNS}
         row.update({"used in ranks": ", ".join(str(r) for r in line["used in ranks"]), "boards": boards,
                     "spares (%)": spares * 100, "total qty": total})
-        if stock is not None:
-            price = stocked.unit_price if stocked else None
+        if stocked:
+            price = stock.get("unit_price") if stock else None
+            on_hand = stock.get("on_hand") if stock else None
             row.update({
-                "part number": stocked.part_number if stocked else None,
-                "package": stocked.package if stocked else None,
-                "voltage (V)": stocked.voltage if stocked else None,
+                "part number": detail.get("part_number"),
+                "stock line": stock.get("line") if stock else None,
+                "package": stock.get("package") if stock else None,
+                "voltage (V)": stock.get("voltage_v") if stock else None,
                 "unit price (each)": price,
                 "extended price (total)": price * total if price is not None else None,
-                "on hand": stocked.on_hand if stocked else None,
-                "shortfall": max(0, total - stocked.on_hand) if stocked and stocked.on_hand is not None else None,
+                "on hand": on_hand,
+                "shortfall": max(0, total - on_hand) if on_hand is not None else None,
             })
         rows.append(row)
     return rows
+
+
+def check_ranks(picks: list[int], count: int) -> list[int]:
+    """The ranks of the order sheet: each must be one of the ``count`` listed; duplicates dropped."""
+    bad = [r for r in picks if not 1 <= r <= count]
+    if not picks or bad:
+        raise BadValue(f"rank {bad[0] if bad else picks} is not listed; {count} candidate(s) are (1…{count})",
+                       setting="order")
+    return list(dict.fromkeys(picks))
+
 
 
 ORDER_PART_COLUMNS = ("kind", "value", "value (Ω or F)", "tol − (%)", "tol + (%)", "TCR min (ppm/°C)",
@@ -146,27 +160,83 @@ def _umask() -> int:
     return mask
 
 
-def atomic_write(path: Path, force: bool, write: Callable[[Path], None], option: str = "--out") -> None:
-    """Write through ``write(temporary_path)``, then rename into ``path``; refuse to overwrite unless ``force``."""
-    path = Path(path)
+def check_writable(path: Path, force: bool, setting: str = "out") -> None:
+    """Refuse to replace an existing file without ``force``, or to write into a folder that does not exist."""
     if path.exists() and not force:
-        raise BadValue(f"{path} exists; add --force to overwrite it", option=option, value=str(path))
+        raise BadValue(f"{path} exists; add {{force}} to overwrite it", setting=setting, value=str(path))
     parent = path.parent if str(path.parent) else Path(".")
     if not parent.is_dir():
-        raise BadValue(f"cannot write {path}: folder {parent} does not exist", option=option, value=str(path))
+        raise BadValue(f"cannot write {path}: folder {parent} does not exist", setting=setting, value=str(path))
+
+
+def check_target(path: Path, force: bool, sheet: str | None, setting: str = "out") -> None:
+    """An export target: .xlsx or .csv, writable, and ``sheet`` only for a .csv."""
+    suffix = path.suffix.lower()
+    if suffix not in (".xlsx", ".csv"):
+        raise BadValue(f"{str(path)!r} must end in .xlsx or .csv", setting=setting, value=str(path))
+    if sheet is not None and suffix != ".csv":
+        raise ClashingOptions("{sheet} applies to a .csv {out} (a .xlsx holds every sheet)", setting="sheet")
+    check_writable(path, force, setting)
+
+
+#: Temporary files of an unfinished write: ``.rcpick-<pid>-<random>.part<suffix>`` beside the target.
+TEMP_PREFIX = ".rcpick-"
+TEMP_MARK = ".part"
+#: A temporary file older than this (seconds) whose writer is gone is removed at the next write there.
+STALE_AFTER = 600
+
+
+def _remove_stale(folder: Path) -> None:
+    """Remove temporary files left by writes that were killed (their process no longer runs)."""
+    import time
+
+    for leftover in folder.glob(f"{TEMP_PREFIX}*{TEMP_MARK}*"):
+        pid_text = leftover.name[len(TEMP_PREFIX):].split("-", 1)[0]
+        try:
+            old = time.time() - leftover.stat().st_mtime > STALE_AFTER
+            alive = pid_text.isdigit() and _running(int(pid_text))
+            if not alive or old:
+                leftover.unlink()
+        except OSError:
+            continue
+
+
+def _running(pid: int) -> bool:
+    if pid == os.getpid():
+        return True
     try:
-        handle, temp = tempfile.mkstemp(prefix=".rcpick-", suffix=path.suffix, dir=parent)
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True
+
+
+def atomic_write(path: Path, force: bool, write: Callable[[Path], None], option: str = "out") -> None:
+    """Write through ``write(temporary_path)``, then rename into ``path``; refuse to overwrite unless ``force``.
+
+    The file it replaces keeps its permission bits; a new file gets the usual ones (umask).
+    """
+    path = Path(path)
+    check_writable(path, force, option)
+    parent = path.parent if str(path.parent) else Path(".")
+    _remove_stale(parent)
+    try:
+        handle, temp_name = tempfile.mkstemp(prefix=f"{TEMP_PREFIX}{os.getpid()}-", suffix=f"{TEMP_MARK}{path.suffix}",
+                                             dir=parent)
     except OSError as error:
-        raise BadValue(f"cannot write {path}: {error.strerror}", option=option, value=str(path)) from None
+        raise BadValue(f"cannot write {path}: {error.strerror}", setting=option, value=str(path)) from None
     os.close(handle)
-    temp = Path(temp)
+    temp = Path(temp_name)
     try:
+        mode = (path.stat().st_mode & 0o7777) if path.exists() else (0o666 & ~_umask())
         write(temp)
-        os.chmod(temp, 0o666 & ~_umask())
+        os.chmod(temp, mode)
         os.replace(temp, path)
     except OSError as error:
         temp.unlink(missing_ok=True)
-        raise BadValue(f"cannot write {path}: {error.strerror or error}", option=option, value=str(path)) from None
+        raise BadValue(f"cannot write {path}: {error.strerror or error}", setting=option, value=str(path)) from None
     except BaseException:
         temp.unlink(missing_ok=True)
         raise
@@ -192,13 +262,33 @@ def write_xlsx(path: Path, sheets: dict[str, list[dict]], force: bool = False) -
     import pandas as pd
 
     def write(temp: Path) -> None:
-        with pd.ExcelWriter(temp, engine="openpyxl") as writer:
+        with _quiet_unraisable(), pd.ExcelWriter(temp, engine="openpyxl") as writer:
             for name, rows in sheets.items():
                 frame = pd.DataFrame(rows)
                 frame.to_excel(writer, sheet_name=name, index=False)
                 _format_sheet(writer.sheets[name], frame)
 
     atomic_write(path, force, write)
+
+
+class _quiet_unraisable:
+    """While writing: a failed write (a full disk) is reported once as an error; the zip library's own
+    complaint when its half-written file is collected afterwards is not printed."""
+
+    def __enter__(self):
+        import sys
+
+        self.hook = sys.unraisablehook
+        sys.unraisablehook = lambda unraisable: None
+        return self
+
+    def __exit__(self, *exc):
+        import gc
+        import sys
+
+        gc.collect()
+        sys.unraisablehook = self.hook
+        return False
 
 
 def write_csv(path: Path, rows: list[dict], force: bool = False) -> None:

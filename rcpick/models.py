@@ -54,10 +54,6 @@ class Drift:
     rated_c: tuple[float, float] | None = None
     text: str = ""
 
-    @property
-    def is_zero(self) -> bool:
-        return self.cold == (0.0, 0.0) and self.hot == (0.0, 0.0)
-
 
 NO_DRIFT = Drift((0.0, 0.0), (0.0, 0.0), True, None, "0 ppm/°C")
 
@@ -129,16 +125,27 @@ def technology_names() -> list[str]:
     return list(load_toml("resistors.toml"))
 
 
-def resistor_technology(name: str) -> tuple[str, Drift, float]:
-    """Look up a resistor technology: (label, drift, usual tolerance as a fraction)."""
+def technology_key(name: str) -> str:
+    """The data file's name of a resistor technology: ``thin-film`` for ``thin film``, ``thin`` or ``THIN_FILM``."""
     table = load_toml("resistors.toml")
     key = name.strip().lower().replace("_", "-").replace(" ", "-")
-    if key in table or f"{key}-film" in table:
-        key = key if key in table else f"{key}-film"
-        entry = table[key]
-        lo, hi = entry["tcr_ppm_per_c"]
-        return entry["label"], linear(lo * 1e-6, hi * 1e-6), entry["tolerance_pct"] / 100
+    for candidate in (key, f"{key}-film"):
+        if candidate in table:
+            return candidate
     raise UnknownName(f"unknown resistor technology {name!r}; accepted: {', '.join(table)}", value=name)
+
+
+def resistor_technology(name: str) -> tuple[str, Drift, float]:
+    """Look up a resistor technology: (label, drift, usual tolerance as a fraction)."""
+    entry = load_toml("resistors.toml")[technology_key(name)]
+    lo, hi = entry["tcr_ppm_per_c"]
+    return entry["label"], linear(lo * 1e-6, hi * 1e-6), entry["tolerance_pct"] / 100
+
+
+def technology_ratings(name: str) -> dict:
+    """A technology's usual ratings per part: ``power_w``, ``voltage_v`` and where they come from."""
+    entry = load_toml("resistors.toml")[technology_key(name)]
+    return {"power_w": entry.get("power_w"), "voltage_v": entry.get("voltage_v"), "source": entry.get("rating_source", "")}
 
 
 # --- capacitors ------------------------------------------------------------
@@ -200,10 +207,20 @@ def _other(key: str, entry: dict) -> Dielectric:
                       entry.get("poor_for_timing"))
 
 
+#: Family words that name several dielectrics: the error lists the codes to choose from.
+FAMILIES = {
+    "FILM": "PP (polypropylene), PET (polyester) or PPS (polyphenylene sulphide)",
+    "CERAMIC": "a class 1 code such as C0G (NP0) or a class 2 code such as X7R or X5R",
+    "MLCC": "a class 1 code such as C0G (NP0) or a class 2 code such as X7R or X5R",
+}
+
+
 def dielectric(code: str) -> Dielectric:
     """Decode a dielectric code: ``C0G``, ``NP0``, ``U2J``, ``X7R``, ``Y5V``, ``PP``, ``ELECTROLYTIC`` …"""
     table = load_toml("dielectrics.toml")
-    key = code.strip().upper().replace(" ", "")
+    key = code.strip().upper().replace(" ", "").replace("_", "-")
+    if key in FAMILIES:
+        raise UnknownName(f"{code!r} names a family, not one dielectric: give {FAMILIES[key]}", value=code)
     key = table["class1"]["aliases"].get(key, key)
     for name, entry in table["other"].items():
         if key == name or key in entry.get("aliases", []):

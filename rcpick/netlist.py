@@ -9,10 +9,12 @@ milli: a value written with a bare ``M`` gets a warning saying how it was read,
 and so does a resistor below 1 Ω or a capacitor of 1 mF or more (likely a
 slip between milli and mega).
 
-After the value an element may carry parameters for the spread:
-``tol=1%`` (or ``-20%:+80%``), ``tcr=100ppm`` (R), ``tech=thin-film`` (R),
-``tc=30ppm`` (C, a custom linear coefficient) and a dielectric code for C
-(``X7R`` or ``dielectric=X7R``).
+After the value an R or C line may carry annotations for the spread, each a
+bare token that its unit or form identifies (docs/networks.md):
+``R1 vdd rst 47k 1% 100ppm thin-film`` (tolerance, TCR, technology) and
+``C1 rst 0 100n 10% X7R`` or ``C1 rst 0 100n -750ppm`` (tolerance, a
+dielectric code or a custom linear coefficient). ``@2.5V`` on a capacitor
+line is its voltage at t = 0 (first node minus second).
 """
 
 from __future__ import annotations
@@ -22,7 +24,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from rcpick import models
-from rcpick.errors import BadValue, RcpickError
+from rcpick.errors import BadValue, RcpickError, UnknownName
 from rcpick.notation import parse_band, parse_ppm_band, parse_quantity
 
 KINDS = {"R": "resistance", "C": "capacitance", "V": "voltage", "I": "current"}
@@ -39,7 +41,7 @@ class Element:
     b: str
     value: float  # SI
     line: int
-    params: dict = field(default_factory=dict)  # tol (band), tcr (band), tech, tc (band), dielectric (code)
+    params: dict = field(default_factory=dict)  # tol (band), tcr (band), tech, tc (band), dielectric (code), v0 (V)
 
 
 @dataclass(frozen=True)
@@ -95,37 +97,45 @@ def _value_warnings(name: str, letter: str, text: str, value: float) -> list[str
     return out
 
 
-def _params(path: str, line: int, letter: str, tokens: list[str]) -> dict:
+_ANNOTATIONS = {"R": "a tolerance (1%), a TCR (100ppm) or a technology (thin-film)",
+                "C": "a tolerance (10%), a dielectric code (X7R), a coefficient (-750ppm) or a start voltage (@2.5V)"}
+
+
+def _params(path: str, line: int, letter: str, tokens: list[str], name: str) -> dict:
+    """The annotations after an element's value: bare tokens known by their unit or form."""
     out: dict = {}
+
+    def once(key: str, value, token: str) -> None:
+        if key in out:
+            raise BadValue(f"{name}: {token!r} gives a second {key}")
+        out[key] = value
+
     for token in tokens:
-        key, _, text = token.partition("=")
-        key = key.lower()
         try:
-            if not _:
-                if letter != "C":
-                    raise BadValue(f"unknown parameter {token!r}; accepted: tol=, tcr=, tech= for R")
-                out["dielectric"] = models.dielectric(token).code
-            elif key == "tol":
-                low, high = parse_band(text)
+            if "=" in token:
+                example = "R1 vdd rst 47k 1% 100ppm" if letter == "R" else "C1 rst 0 100n 10% X7R"
+                raise BadValue(f"{name}: {token!r} is the old key=value form; write annotations as bare tokens, "
+                               f"e.g. {example}")
+            if letter in "VI":
+                raise BadValue(f"{name}: sources take no annotations, got {token!r}")
+            if token.endswith("%"):
+                low, high = parse_band(token)
                 if not (-1 < low <= 0 <= high < 1) or high <= low:
-                    raise BadValue(f"tolerance {text!r} must be greater than 0 % and less than 100 %")
-                out["tol"] = (low, high)
-            elif key == "tcr" and letter == "R":
-                out["tcr"] = parse_ppm_band(text)
-            elif key == "tech" and letter == "R":
-                models.resistor_technology(text)
-                out["tech"] = text
-            elif key == "tc" and letter == "C":
-                out["tc"] = parse_ppm_band(text)
-            elif key == "dielectric" and letter == "C":
-                out["dielectric"] = models.dielectric(text).code
+                    raise BadValue(f"{name}: tolerance {token!r} must be greater than 0 % and less than 100 %")
+                once("tol", (low, high), token)
+            elif "ppm" in token.lower():
+                once("tcr" if letter == "R" else "tc", parse_ppm_band(token), token)
+            elif token.startswith("@") and letter == "C":
+                once("v0", parse_quantity(token[1:], "voltage", positive=False), token)
+            elif letter == "R":
+                once("tech", models.technology_key(token), token)
             else:
-                accepted = "tol=, tcr=, tech=" if letter == "R" else "tol=, tc=, dielectric= or a dielectric code"
-                raise BadValue(f"unknown parameter {token!r} for {letter}; accepted: {accepted}")
+                once("dielectric", models.dielectric(token).code, token)
         except RcpickError as error:
-            raise _fail(path, line, error.message) from None
-    if letter in "VI" and out:
-        raise _fail(path, line, "sources take no spread parameters")
+            message = error.message if error.message.startswith(f"{name}:") else f"{name}: {error.message}"
+            if isinstance(error, UnknownName):
+                message = f"{name}: cannot read {token!r}; expected {_ANNOTATIONS[letter]}"
+            raise _fail(path, line, message) from None
     return out
 
 
@@ -134,6 +144,7 @@ def parse(text: str, path: str = "<netlist>") -> Netlist:
     elements: list[Element] = []
     warnings: list[str] = []
     names: dict[str, int] = {}
+    text = text.removeprefix("\ufeff")
     for number, raw in enumerate(text.splitlines(), start=1):
         line = raw.split(";", 1)[0].strip()
         if not line or line.startswith("*"):
@@ -165,23 +176,31 @@ def parse(text: str, path: str = "<netlist>") -> Netlist:
         if a == b:
             what = {"R": "resistor", "C": "capacitor", "V": "voltage source", "I": "current source"}[letter]
             raise _fail(path, number, f"{name}: both ends of the {what} are on node {a!r}")
-        elements.append(Element(name, letter, a, b, value, number, _params(path, number, letter, tokens[4:])))
+        elements.append(Element(name, letter, a, b, value, number, _params(path, number, letter, tokens[4:], name)))
     net = Netlist(path, tuple(elements), tuple(warnings))
     check(net)
     return net
 
 
+#: Largest netlist analysed: each unit of a Monte Carlo solves it, so memory and time grow with its size.
+MAX_ELEMENTS = 400
+
+
 def read(path: str | Path) -> Netlist:
-    path = Path(path)
+    """Read and check a netlist file (UTF-8, or UTF-16 / UTF-8 with a byte-order mark)."""
+    from rcpick.textfiles import read_text
+
     try:
-        text = path.read_text(encoding="utf-8")
-    except OSError as error:
-        raise NetlistError(f"{path}: cannot read ({error.strerror})") from None
+        text = read_text(path)
+    except BadValue as error:
+        raise NetlistError(error.message) from None
     return parse(text, str(path))
 
 
-class _Union:
-    def __init__(self):
+class Union:
+    """Disjoint sets of names (union-find), for supernodes and connectivity checks."""
+
+    def __init__(self) -> None:
         self.parent: dict[str, str] = {}
 
     def find(self, x: str) -> str:
@@ -199,9 +218,9 @@ class _Union:
         return True
 
 
-def supernodes(net: Netlist) -> _Union:
+def supernodes(net: Netlist) -> Union:
     """Nodes joined by voltage sources (a zeroed source is a short)."""
-    union = _Union()
+    union = Union()
     for node in net.nodes:
         union.find(node)
     for e in net.of("V"):
@@ -215,16 +234,19 @@ def check(net: Netlist) -> None:
     path = net.path
     if not net.elements:
         raise _fail(path, None, "no element lines")
+    if len(net.elements) > MAX_ELEMENTS:
+        raise _fail(path, None, f"{len(net.elements):,} elements is more than the {MAX_ELEMENTS} rcpick analyses "
+                                f"(every Monte Carlo unit solves the whole network)")
     if not any(GROUND in (e.a, e.b) for e in net.elements):
         raise _fail(path, None, "no element connects to ground (node 0)")
-    union = _Union()
+    union = Union()
     for e in net.of("V"):
         if not union.join(e.a, e.b):
             raise _fail(path, e.line, f"{e.name} closes a loop of voltage sources")
     for e in net.of("C"):
         if union.find(e.a) == union.find(e.b):
             raise _fail(path, e.line, f"{e.name} is shorted by voltage sources (both ends tied by sources)")
-    everything = _Union()
+    everything = Union()
     for e in net.elements:
         everything.join(e.a, e.b)
     ground = everything.find(GROUND)

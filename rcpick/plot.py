@@ -22,7 +22,7 @@ def _pyplot():
         import matplotlib
     except ImportError:
         raise PlotUnavailable("pictures need matplotlib: pip install 'rcpick[plot]' (or pip install matplotlib)",
-                              option="--plot") from None
+                              setting="plot") from None
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
@@ -34,7 +34,7 @@ def _save(fig, path: Path, force: bool) -> None:
         fig.savefig(temp, format="png", dpi=120, bbox_inches="tight")
 
     try:
-        atomic_write(Path(path), force, write, option="--plot")
+        atomic_write(Path(path), force, write, option="plot")
     finally:
         import matplotlib.pyplot as plt
 

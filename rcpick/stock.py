@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import csv
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 from rcpick import models
@@ -21,7 +21,7 @@ from rcpick.notation import parse_band, parse_ppm_band, parse_quantity
 COLUMNS = ("kind", "value", "tolerance", "tcr", "dielectric", "part_number", "unit_price", "on_hand", "package", "voltage")
 REQUIRED = ("kind", "value")
 KINDS = {"r": "resistance", "resistor": "resistance", "c": "capacitance", "capacitor": "capacitance"}
-#: IEC 60062 tolerance letters, as percent (facts.md §2). For small capacitors B, C, D can mean pF instead: not used here.
+#: IEC 60062:2016 tolerance letters, as percent. For small capacitors B, C, D can mean pF instead: not used here.
 TOLERANCE_LETTERS = {"B": 0.1, "C": 0.25, "D": 0.5, "F": 1, "G": 2, "J": 5, "K": 10, "M": 20}
 MAX_PROBLEMS_SHOWN = 5
 
@@ -52,27 +52,67 @@ class StockPart:
 
 
 @dataclass(frozen=True)
+class Ask:
+    """What the engineer asked of a position's parts; stock lines that do not meet it are not used.
+
+    ``tolerance`` is the widest side allowed (a fraction), ``tcr`` the largest coefficient bound in size
+    (1/°C), ``dielectric`` the code asked; None where nothing was asked.
+    """
+
+    tolerance: float | None = None
+    tcr: float | None = None
+    dielectric: str | None = None
+
+    def met_by(self, part: StockPart) -> bool:
+        if self.tolerance is not None and part.tolerance is not None:
+            if max(-part.tolerance[0], part.tolerance[1]) > self.tolerance * (1 + 1e-9):
+                return False
+        if self.tcr is not None and part.tcr is not None:
+            if max(abs(part.tcr[0]), abs(part.tcr[1])) > self.tcr * (1 + 1e-9):
+                return False
+        if self.dielectric is not None and part.dielectric is not None and part.dielectric != self.dielectric:
+            return False
+        return True
+
+
+@dataclass(frozen=True)
 class Stock:
-    """The parts of one stock file."""
+    """The parts of one stock file, indexed by kind and value once."""
 
     path: str
     parts: tuple[StockPart, ...]
+    _index: dict = field(default_factory=dict, compare=False, repr=False)
+
+    def __post_init__(self) -> None:
+        for part in self.parts:
+            self._index.setdefault(part.kind, {}).setdefault(part.value, []).append(part)
 
     def covers(self, kind: str) -> bool:
-        return any(p.kind == kind for p in self.parts)
+        return kind in self._index
 
-    def by_value(self, kind: str, low: float, high: float) -> dict[float, StockPart]:
-        """One part per distinct value inside [low, high] (SI): the first by :attr:`StockPart.choice_key`."""
-        chosen: dict[float, StockPart] = {}
-        for part in sorted((p for p in self.parts if p.kind == kind), key=lambda p: p.choice_key):
-            if low * (1 - 1e-9) <= part.value <= high * (1 + 1e-9):
-                chosen.setdefault(part.value, part)
-        return chosen
+    def lines(self, kind: str, value: float) -> list[StockPart]:
+        """Every stocked line of one value, in file order."""
+        return self._index.get(kind, {}).get(value, [])
 
-    def find(self, kind: str, value: float) -> StockPart | None:
-        """The stocked part used for ``value`` (the same choice as :meth:`by_value`)."""
-        matching = [p for p in self.parts if p.kind == kind and p.value == value]
-        return min(matching, key=lambda p: p.choice_key) if matching else None
+    def values(self, kind: str, low: float, high: float, ask: Ask = Ask()) -> list[float]:
+        """Distinct stocked values inside [low, high] (SI) with at least one line meeting ``ask``, ascending."""
+        return sorted(v for v, lines in self._index.get(kind, {}).items()
+                      if low * (1 - 1e-9) <= v <= high * (1 + 1e-9) and any(ask.met_by(p) for p in lines))
+
+    def choose(self, kind: str, value: float, need: int = 1, ask: Ask = Ask()) -> StockPart | None:
+        """The line a part of ``value`` is taken from (docs/purchasing.md).
+
+        Among the lines meeting ``ask``, those with ``need`` or more on hand (or no count given) come first,
+        the cheapest of them (a line without a price after priced ones), then the tightest tolerance, then the
+        first in the file. When no line covers the need, the one with the most on hand.
+        """
+        usable = [p for p in self.lines(kind, value) if ask.met_by(p)]
+        if not usable:
+            return None
+        covering = [p for p in usable if p.on_hand is None or p.on_hand >= need]
+        if covering:
+            return min(covering, key=lambda p: (p.unit_price if p.unit_price is not None else math.inf,) + p.choice_key)
+        return max(usable, key=lambda p: (p.on_hand or 0, -(p.unit_price or 0.0), -p.line))
 
 
 def _read_rows(path: Path) -> list[tuple[int, dict[str, str]]]:
@@ -145,7 +185,7 @@ def _part(line: int, cells: dict[str, str]) -> StockPart:
     kind = KINDS.get(cells.get("kind", "").lower())
     if kind is None:
         problems.append(f"column kind: {cells.get('kind', '')!r} is not R or C")
-    value = field("value", lambda t: parse_quantity(t, kind, option=None)) if kind else None
+    value = field("value", lambda t: parse_quantity(t, kind)) if kind else None
     if kind and value is None and not any("column value" in p for p in problems):
         problems.append("column value: empty")
     if kind == "capacitance" and cells.get("tcr"):

@@ -1,15 +1,21 @@
-"""Timing targets (time constant, corner frequency, threshold delay) and their tau.
+"""Timing targets: time constant, corner frequency, delay between two levels, oscillator period.
 
-A target of any kind becomes one required time constant ``tau_s`` at the
-start; candidates' time constants are turned back into the target's own
-quantity at the end.
+A target turns the effective R and C of a design into the quantity asked
+for (seconds or hertz). Without leakage the quantity depends on R·C alone, so
+the target has one required time constant ``tau_s``; with a leakage current at
+the node it depends on R and C separately (the final level is V∞ − I·R), and
+the search asks the target for the capacitance each resistance needs.
+
+Levels are fractions of the *scale*: the supply the node charges towards
+(rising), or the start value when a discharge gives no supply.
 
 References
 ----------
 OpenStax, *College Physics 2e*, §21.6, eqs. 21.77–21.80 (charging
-V∞(1 − e^(−t/RC)), discharging V0·e^(−t/RC)).
-T. Kuphaldt, *Lessons in Electric Circuits* Vol. I, ch. 16 (time to a
-threshold, t = τ·ln((V∞ − V0)/(V∞ − Vth))).
+V∞(1 − e^(−t/RC)), discharging V0·e^(−t/RC)), generalised to
+v(t) = V∞ + (V0 − V∞)·e^(−t/τ).
+T. Kuphaldt, *Lessons in Electric Circuits* Vol. I, ch. 16 (time between two
+levels, t = τ·ln((V∞ − V0)/(V∞ − V1))).
 """
 
 from __future__ import annotations
@@ -21,7 +27,8 @@ import numpy as np
 
 from rcpick.errors import BadValue
 
-KINDS = ("tau", "cutoff", "delay")
+KINDS = ("tau", "cutoff", "delay", "period")
+LIMITS = ("upper", "lower")
 
 
 @dataclass(frozen=True)
@@ -31,89 +38,242 @@ class Target:
     Attributes
     ----------
     kind : str
-        ``tau`` (seconds), ``cutoff`` (first-order corner, hertz) or ``delay``
-        (seconds to cross a threshold).
+        ``tau`` (s), ``cutoff`` (first-order corner, Hz), ``delay`` (s from a
+        start level to a threshold) or ``period`` (s, RC relaxation oscillator).
     value : float
         The requested value in ``unit``.
     unit : str
         ``"s"`` or ``"Hz"``.
-    tau_s : float
-        The time constant that meets the target exactly, in seconds.
     threshold : float or None
-        For a delay: the threshold as a fraction of the final value (rising)
-        or of the start value (falling).
+        Delay: the level crossed, a fraction of the scale.
+    start : float or None
+        Delay: the level at t = 0, a fraction of the scale (0 rising, 1 falling when not given).
     falling : bool
-        For a delay: the node discharges instead of charging.
+        Delay: the node discharges towards 0 instead of charging towards the scale.
+    thresholds : (float, float) or None
+        Period: the oscillator's lower and upper switching levels, fractions of the supply.
+    scale_v : float or None
+        The supply (or start value when falling) in volts, when given.
+    leak_a : float
+        Constant current drawn out of the node, A (negative: into it); needs ``scale_v``.
+    limit : str or None
+        ``upper`` (every unit at or below the value), ``lower`` (at or above), or None (a window).
     """
 
     kind: str
     value: float
     unit: str
-    tau_s: float
     threshold: float | None = None
+    start: float | None = None
     falling: bool = False
+    thresholds: tuple[float, float] | None = None
+    scale_v: float | None = None
+    leak_a: float = 0.0
+    limit: str | None = None
+
+    # --- levels ---------------------------------------------------------------
 
     @property
-    def delay_per_tau(self) -> float:
-        """Delay divided by tau: ln(1/(1 − f)) rising, ln(1/f) falling."""
-        return delay_factor(self.threshold, self.falling) if self.kind == "delay" else 1.0
+    def start_level(self) -> float:
+        """Delay: the start level as a fraction of the scale."""
+        if self.start is not None:
+            return self.start
+        return 1.0 if self.falling else 0.0
 
-    def quantity(self, tau_s: np.ndarray | float) -> np.ndarray:
-        """The target's quantity (s or Hz) for time constant(s) ``tau_s``."""
-        tau_s = np.asarray(tau_s, dtype=float)
+    @property
+    def times_per_tau(self) -> bool:
+        """True for targets measured in seconds that scale with R·C (tau, delay, period)."""
+        return self.kind != "cutoff"
+
+    def _leak_fraction(self, r_ohm):
+        """I·R as a fraction of the scale (0 without leakage)."""
+        if not self.leak_a:
+            return 0.0
+        assert self.scale_v is not None
+        return self.leak_a * np.asarray(r_ohm, dtype=float) / self.scale_v
+
+    def per_tau(self, r_ohm=None, deviation=None) -> np.ndarray | float:
+        """The quantity divided by tau (delay and period; 1 for tau).
+
+        Parameters
+        ----------
+        r_ohm : array, optional
+            Effective resistance, needed only with leakage.
+        deviation : array or (array, array), optional
+            Relative deviations of the threshold (delay) or of the low and high thresholds (period).
+
+        Returns NaN where the node never reaches the level asked.
+        """
+        if self.kind in ("tau", "cutoff"):
+            return 1.0
+        leak = self._leak_fraction(r_ohm) if self.leak_a else 0.0
+        with np.errstate(divide="ignore", invalid="ignore"):
+            if self.kind == "delay":
+                assert self.threshold is not None
+                th = self.threshold if deviation is None else self.threshold * (1.0 + np.asarray(deviation))
+                final = -leak if self.falling else 1.0 - leak
+                ratio = (final - self.start_level) / (final - np.asarray(th))
+                return np.where(ratio > 1.0, np.log(np.where(ratio > 1.0, ratio, 2.0)), np.nan)
+            assert self.thresholds is not None
+            low, high = self.thresholds
+            if deviation is not None:
+                low, high = low * (1.0 + np.asarray(deviation[0])), high * (1.0 + np.asarray(deviation[1]))
+            charge = ((1.0 - leak) - low) / ((1.0 - leak) - np.asarray(high))
+            discharge = (high + leak) / (np.asarray(low) + leak)
+            ok = (charge > 1.0) & (discharge > 1.0) & (np.asarray(low) < high)
+            return np.where(ok, np.log(np.where(ok, charge, 2.0)) + np.log(np.where(ok, discharge, 2.0)), np.nan)
+
+    def half_periods(self, tau_s, r_ohm=None) -> tuple[np.ndarray, np.ndarray]:
+        """Period targets: (charging time, discharging time), s."""
+        assert self.thresholds is not None
+        low, high = self.thresholds
+        leak = self._leak_fraction(r_ohm) if self.leak_a else 0.0
+        tau = np.asarray(tau_s, dtype=float)
+        return tau * np.log(((1.0 - leak) - low) / ((1.0 - leak) - high)), tau * np.log((high + leak) / (low + leak))
+
+    # --- quantity ---------------------------------------------------------------
+
+    def quantity(self, r_ohm, c_farad, deviation=None) -> np.ndarray:
+        """The target's quantity (s or Hz) of effective R and C (arrays broadcast)."""
+        tau = np.asarray(r_ohm, dtype=float) * np.asarray(c_farad, dtype=float)
         if self.kind == "cutoff":
-            return 1.0 / (2.0 * math.pi * tau_s)
-        return tau_s * self.delay_per_tau
+            return 1.0 / (2.0 * math.pi * tau)
+        if self.kind == "tau":
+            return tau
+        return tau * self.per_tau(r_ohm if self.leak_a else None, deviation)
 
-    def tau_for_error(self, error: float) -> float:
-        """The time constant (s) whose quantity has relative error ``error`` against the target."""
+    def of_tau(self, tau_s) -> np.ndarray:
+        """The quantity for time constants ``tau_s`` (targets without leakage)."""
+        tau = np.asarray(tau_s, dtype=float)
         if self.kind == "cutoff":
-            return self.tau_s / (1.0 + error)
-        return self.tau_s * (1.0 + error)
+            return 1.0 / (2.0 * math.pi * tau)
+        return tau * self.per_tau()
 
-    def error(self, tau_s: np.ndarray | float) -> np.ndarray:
-        """Signed relative error of the quantity: quantity/target − 1."""
-        return self.quantity(tau_s) / self.value - 1.0
+    def error(self, quantity) -> np.ndarray:
+        """Signed relative error: quantity/target − 1."""
+        return np.asarray(quantity, dtype=float) / self.value - 1.0
 
+    @property
+    def tau_s(self) -> float | None:
+        """The time constant that meets the target exactly; None when leakage makes it depend on R."""
+        if self.leak_a or (self.kind == "delay" and self.threshold is None) or \
+                (self.kind == "period" and self.thresholds is None):
+            return None  # leakage, or a level defined by a network node rather than by a fraction of the step
+        return self.tau_of(self.value)
 
-def delay_factor(threshold: float, falling: bool) -> float:
-    """Delay in units of tau to reach ``threshold`` (fraction, 0 < f < 1)."""
-    if not 0.0 < threshold < 1.0:
-        raise BadValue(f"threshold must lie strictly between 0 and 1 of the step, got {threshold:g}")
-    return math.log(1.0 / threshold) if falling else math.log(1.0 / (1.0 - threshold))
+    def tau_of(self, quantity: float) -> float:
+        """The time constant whose quantity is ``quantity`` (targets without leakage)."""
+        if self.kind == "cutoff":
+            return 1.0 / (2.0 * math.pi * quantity)
+        return quantity / float(self.per_tau())
+
+    def partner(self, outer, quantity: float, outer_is_r: bool) -> np.ndarray:
+        """The inner value (C for an outer R, R for an outer C) giving ``quantity`` exactly.
+
+        With leakage the outer set must be the resistances: for a fixed R the quantity is
+        linear in C. NaN where an outer value cannot reach the quantity at all.
+        """
+        outer = np.asarray(outer, dtype=float)
+        if not self.leak_a:
+            return self.tau_of(quantity) / outer
+        if not outer_is_r:
+            raise ValueError("with leakage the search iterates over resistances")
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return quantity / (outer * self.per_tau(outer))
+
+    @property
+    def rises_with_tau(self) -> bool:
+        """Whether the quantity grows with R and C (times do; a corner frequency falls)."""
+        return self.kind != "cutoff"
+
+    def describe(self) -> str:
+        """One line naming the target (without the value's spread)."""
+        from rcpick.notation import format_si
+
+        text = f"{self.kind} = {format_si(self.value, self.unit)}"
+        if self.kind == "delay" and self.threshold is not None:
+            way = "falling" if self.falling else "rising"
+            text += f", {way} from {self._level_text(self.start_level)} to {self._level_text(self.threshold)}"
+        elif self.kind == "period" and self.thresholds is not None:
+            text += f", between {self._level_text(self.thresholds[0])} and {self._level_text(self.thresholds[1])}"
+        if self.leak_a:
+            text += f", leakage {format_si(self.leak_a, 'A')} out of the node"
+        tau = self.tau_s
+        if self.kind != "tau" and tau is not None:
+            text += f" (tau {format_si(tau, 's')})"
+        return text
+
+    def _level_text(self, fraction: float) -> str:
+        from rcpick.notation import format_si
+
+        if self.scale_v is not None:
+            return format_si(fraction * self.scale_v, "V", 4)
+        return f"{fraction:.4g} of the step"
 
 
 def for_tau(tau_s: float) -> Target:
     """A time-constant target."""
-    return Target("tau", tau_s, "s", tau_s)
+    return Target("tau", tau_s, "s")
 
 
 def for_cutoff(frequency_hz: float) -> Target:
     """A first-order corner-frequency target, fc = 1/(2πRC)."""
-    return Target("cutoff", frequency_hz, "Hz", 1.0 / (2.0 * math.pi * frequency_hz))
+    return Target("cutoff", frequency_hz, "Hz")
 
 
-def for_delay(delay_s: float, threshold: float, falling: bool = False) -> Target:
-    """A delay target: time from the step to the node crossing ``threshold``."""
-    return Target("delay", delay_s, "s", delay_s / delay_factor(threshold, falling), threshold, falling)
+def for_delay(delay_s: float, threshold: float, falling: bool = False, *, start: float | None = None,
+              scale_v: float | None = None, leak_a: float = 0.0) -> Target:
+    """A delay target: time from the start level (0, or 1 when falling) to ``threshold`` (fractions of the scale)."""
+    target = Target("delay", delay_s, "s", threshold, start, falling, scale_v=scale_v, leak_a=leak_a)
+    check_levels(target)
+    return target
 
 
-def threshold_fraction(level: float, *, is_voltage: bool, supply_v: float | None, falling: bool) -> float:
-    """Turn a threshold given as a fraction or as a voltage into a fraction of the step.
+def for_period(period_s: float, low: float, high: float, *, scale_v: float | None = None,
+               leak_a: float = 0.0) -> Target:
+    """An RC relaxation oscillator's period: charging from ``low`` to ``high`` towards the supply,
+    discharging from ``high`` to ``low`` towards 0 through the same R (fractions of the supply)."""
+    target = Target("period", period_s, "s", thresholds=(low, high), scale_v=scale_v, leak_a=leak_a)
+    check_levels(target)
+    return target
 
-    Parameters
-    ----------
-    level : float
-        A fraction (0.7) or a voltage (volts) when ``is_voltage``.
-    supply_v : float, optional
-        The final value when charging, or the start value when falling (volts).
-    """
-    if is_voltage:
-        if supply_v is None:
-            raise BadValue("a threshold in volts needs --supply (the step's final value, or the start value with --falling)")
-        if level >= supply_v:
-            raise BadValue(f"threshold {level:g} V must be below the supply {supply_v:g} V")
-        level = level / supply_v
-    if not 0.0 < level < 1.0:
-        raise BadValue(f"threshold must lie strictly between 0 and 1 (or 0 % and 100 %), got {level:g}")
-    return level
+
+def check_levels(target: Target) -> None:
+    """Refuse levels the node cannot pass between (without leakage; leakage is checked per design)."""
+    if target.kind == "delay":
+        th, start = target.threshold, target.start_level
+        assert th is not None
+        if target.falling:
+            if not 0.0 < th < start:
+                raise BadValue(f"a falling node must start above its threshold and the threshold lie above 0 "
+                               f"(start {start:.4g}, threshold {th:.4g} of the scale)", setting="threshold")
+        elif not (start < th < 1.0):
+            what = "below the supply" if target.scale_v is not None else "strictly between 0 and 1 (0 % and 100 %) of the step"
+            if th >= 1.0:
+                raise BadValue(f"threshold {th:.4g} must lie {what}", setting="threshold")
+            raise BadValue(f"a rising node must start below its threshold (start {start:.4g}, threshold {th:.4g} "
+                           f"of the scale)", setting="from_level")
+        if not th > 0.0:
+            raise BadValue(f"threshold must lie strictly between 0 and 1 (or 0 % and 100 %), got {th:g}",
+                           setting="threshold")
+    elif target.kind == "period":
+        assert target.thresholds is not None
+        low, high = target.thresholds
+        if not 0.0 < low < high < 1.0:
+            raise BadValue(f"the thresholds must satisfy 0 < low < high < supply, got {low:.4g} and {high:.4g} "
+                           f"of the supply", setting="thresholds")
+
+
+def delay_factor(threshold: float, falling: bool) -> float:
+    """Delay from the step in units of tau to reach ``threshold`` (fraction, 0 < f < 1)."""
+    return float(for_delay(1.0, threshold, falling).per_tau())
+
+
+def level_fraction(level: float, *, is_volts: bool, scale_v: float | None, setting: str) -> float:
+    """A level typed as a fraction or as volts, as a fraction of the scale."""
+    if not is_volts:
+        return level
+    if scale_v is None:
+        raise BadValue("a level in volts needs {supply} (the step's final value, or the start value when "
+                       "falling)", setting=setting)
+    return level / scale_v

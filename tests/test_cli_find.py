@@ -12,13 +12,14 @@ def test_tau_table(run):
     assert result.exit_code == 0, result.output
     assert "tau = 10.0 ms" in result.stdout
     assert "combinations" in result.stdout
-    assert "1K" in result.stdout and "10u" in result.stdout
+    assert "Recommendation Build rank 1" in result.stdout and "95 % interval" in result.stdout
 
 
 def test_json_schema(run_json):
     doc = run_json("find", "--tau", "4.7ms", "--top", "5", "--rank", "error")
     window = doc["target"].pop("window")
-    assert doc["target"] == {"kind": "tau", "value": 4.7e-3, "unit": "s", "tau_s": 4.7e-3}
+    assert doc["target"] == {"kind": "tau", "value": 4.7e-3, "unit": "s", "tau_s": 4.7e-3, "supply_v": None,
+                             "leak_a": None, "limit": None}
     assert window["low"] == pytest.approx(4.7e-3 * 0.9) and window["high"] == pytest.approx(4.7e-3 * 1.1)
     assert doc["searched"]["r_combinations"] > 1000 and doc["searched"]["c_combinations"] > 1000
     assert [c["rank"] for c in doc["candidates"]] == [1, 2, 3, 4, 5]
@@ -31,7 +32,7 @@ def test_json_schema(run_json):
         assert cand["parts"] == len(r["parts_ohm"]) + len(c["parts_farad"])
         sp = cand["spread"]
         assert sp["worst_min"] <= sp["p_low"] <= sp["p_median"] <= sp["p_high"] <= sp["worst_max"]
-        assert 0.0 <= sp["yield"] <= 1.0
+        assert 0.0 <= sp["yield_ci"][0] <= sp["yield"] <= sp["yield_ci"][1] <= 1.0
     errors = [abs(c["error"]) for c in doc["candidates"]]
     assert errors == sorted(errors)
 
@@ -96,10 +97,14 @@ BAD = {
     "min above max": (["--tau", "1ms", "--c-min", "1u", "--c-max", "1n"], "--c-min", "above --c-max"),
     "threshold outside (0, 1)": (["--delay", "1ms", "--threshold", "1.5"], "--threshold", "between 0 and 1"),
     "threshold at supply": (["--delay", "1ms", "--threshold", "5V", "--supply", "5V"], "--threshold", "below the supply"),
-    "no target": ([], "target", "got none"),
+    "no target": (["--r-series", "E96"], "target", "got none"),
     "two targets": (["--tau", "1ms", "--cutoff", "1kHz"], "--tau and --cutoff", "exactly one"),
     "fix with parts": (["--tau", "1ms", "--fix-r", "10k", "--r-parts", "1"], "--fix-r and --r-parts", "together"),
-    "top 0": (["--tau", "1ms", "--top", "0"], "--top", "between 1 and"),
+    "top 0": (["--tau", "1ms", "--top", "0"], "--top", "must be between 1 and 200"),
+    "top abc": (["--tau", "1ms", "--top", "abc"], "--top", "'abc' is not a whole number (1…200)"),
+    "samples in notation, too many": (["--tau", "1ms", "--samples", "2e8"], "--samples", "between 100 and"),
+    "unknown option": (["--tau", "1ms", "--taux", "1"], "No such option", "--taux"),
+    "missing value": (["--tau"], "--tau", "requires an argument"),
     "unreachable": (["--tau", "1000s", "--rank", "error"], "within 50%", "widen"),
     "nothing inside the window": (["--tau", "1000s"], "inside the window", "--rank error"),
     "r-parts 3": (["--tau", "1ms", "--r-parts", "3"], "--r-parts", "1 or 2"),

@@ -52,12 +52,19 @@ def test_explicit_config_file_and_relative_stock(run_json, tmp_path, monkeypatch
 
 
 @pytest.mark.parametrize(("text", "fragment"), [
-    ('tmp = "0:70"\n', "unknown key 'tmp'; valid keys: r-series"),
+    ('tmp = "0:70"\n', "unknown key 'tmp'; valid keys: supply limit r-series"),
+    ('tau = "1ms"\n', "unknown key 'tau'"),
     ('temp = "70:0"\n', "key 'temp': minimum 70 °C is above maximum 0 °C"),
-    ('samples = "many"\n', "key 'samples' must be a whole number"),
+    ('samples = "many"\n', "key 'samples': 'many' is not a whole number"),
+    ('window = "5%:10%"\n', "key 'window': window '5%:10%' excludes the target"),
+    ('r-tol = "150%"\n', "key 'r-tol': tolerance '150%' is more than ±50%"),
+    ('spares = "5000%"\n', "key 'spares': '5000%' must lie in 0%…1000%"),
+    ('temp = "1e400"\n', "key 'temp': '1e400' is not a finite temperature range"),
+    ('c-age = "nan"\n', "key 'c-age': cannot read 'nan'"),
     ('dielectric = "X9Z"\n', "key 'dielectric': unknown dielectric"),
     ('r-series = "E25"\n', "key 'r-series': unknown series"),
     ('top = 0\n', "key 'top': 0 must be between 1 and 200"),
+    ('seed = -1\n', "key 'seed': -1 is not a whole number 0 or more"),
     ('temp = \n', "not valid TOML"),
 ])
 def test_bad_file_names_key_and_valid(run, tmp_path, monkeypatch, text, fragment):
@@ -72,10 +79,27 @@ def test_bad_file_names_key_and_valid(run, tmp_path, monkeypatch, text, fragment
 
 def test_missing_config_file(run, tmp_path):
     result = run("find", "--tau", "1ms", "--config", str(tmp_path / "none.toml"))
-    assert result.exit_code == 2 and "cannot read" in result.stderr
+    assert result.exit_code == 2 and "none.toml: no such file" in result.stderr
 
 
 def test_config_table(run, project):
     result = run("config")
     assert result.exit_code == 0
     assert "rcpick.toml" in result.stdout and "built-in" in result.stdout and "E96" in result.stdout
+
+
+def test_config_takes_find_options_and_shows_what_was_derived(run):
+    # the R tolerance follows the series asked for, and the samples follow --net
+    found = settings(run, "--r-series", "E96", "--tau", "1ms")
+    assert found["r-tol"] == ("±1 % (E96's usual)", "built-in")
+    assert found["tau"] == ("1ms", "command line")
+    c0g = settings(run, "--dielectric", "C0G")
+    assert c0g["c-tol"] == ("±5 % (C0G's usual)", "built-in")
+    assert c0g["c-max"][0] == "100 nF"  # the practical range of C0G parts (data/practical.toml)
+
+
+def test_stock_lines_are_what_the_settings_say(run):
+    # with a stock file, the tolerances come from its lines, and config says so
+    found = settings(run, "--stock", "demo")
+    assert found["r-tol"][0].startswith("stock lines' own")
+    assert found["c-tol"][0].startswith("stock lines' own")

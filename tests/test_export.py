@@ -118,7 +118,7 @@ def test_atomic_write_leaves_nothing_broken(tmp_path):
 BAD = {
     "order rank missing": (["--top", "5", "--order", "7", "--out", "x.xlsx"], "--order", "rank 7 is not listed; 5 candidate(s)"),
     "order without out": (["--order", "2"], "--order needs --out", "order sheet"),
-    "boards zero": (["--boards", "0"], "--boards", "at least 1"),
+    "boards zero": (["--boards", "0"], "--boards", "must be between 1 and"),
     "unwritable path": (["--out", "/nonexistent-folder/x.xlsx"], "--out", "does not exist"),
     "bad suffix": (["--out", "x.pdf"], "--out", ".xlsx or .csv"),
     "sheet with xlsx": (["--out", "x.xlsx", "--sheet", "order"], "--sheet", ".csv"),
@@ -146,5 +146,19 @@ def test_spread_exports_its_design(run, tmp_path):
                  "--out", str(path))
     assert result.exit_code == 0, result.output
     order = pd.read_excel(path, sheet_name="order")
-    assert list(order["part number"]) == ["DEMO-R0603-47K0-F", "DEMO-C1206-100N-C0G"]
+    # the cheapest line that covers 100 boards: the 100n X7R line, not the C0G one (300 on hand, 19× the price)
+    assert list(order["part number"]) == ["DEMO-R0603-47K0-F", "DEMO-C0603-100N-X7R"]
     assert list(order["total qty"]) == [100, 100]
+    assert list(order["stock line"]) == [11, 22]
+    query = pd.read_excel(path, sheet_name="query").fillna("")
+    settings = dict(zip(query["setting"], query["value"]))
+    # what the query sheet says about the parts is what was simulated: the stock lines
+    assert settings["r-tol"].startswith("stock lines' own") and settings["c-tol"].startswith("stock lines' own")
+
+
+def test_spread_header_names_the_stock_lines(run):
+    result = run("spread", "--r", "47k", "--c", "100n", "--stock", "demo", "--tau", "4.7ms")
+    assert result.exit_code == 0, result.output
+    out = result.stdout
+    assert "stock line 11 DEMO-R0603-47K0-F, -1/+1 %" in out and "stock line 22 DEMO-C0603-100N-X7R, -10/+10 %" in out
+    assert "stock lines' own columns" in out

@@ -8,11 +8,11 @@ from rcpick.netlist import NetlistError, parse
 def test_values_comments_and_parameters():
     net = parse("""* a title comment
 V1 in 0 DC 5      ; an inline comment
-R1 in a 1Meg tol=1% tcr=100ppm
-R2 a 0 4K7 tech=thin-film
-C1 a 0 100n X7R tol=-20%:+80%
-C2 a 0 22p dielectric=C0G
-C3 a 0 1n tc=-750ppm
+R1 in a 1Meg 1% 100ppm
+R2 a 0 4K7 thin-film
+C1 a 0 100n X7R -20%:+80%
+C2 a 0 22p C0G @1.5V
+C3 a 0 1n -750ppm
 I1 0 a 1m
 .tran 1u 1m
 .end
@@ -23,7 +23,7 @@ R9 ignored after end 1k
     assert r1.value == 1e6 and r1.params["tol"] == (-0.01, 0.01) and r1.params["tcr"] == pytest.approx((-1e-4, 1e-4))
     assert net.get("R2").value == 4.7e3 and net.get("R2").params["tech"] == "thin-film"
     assert net.get("C1").params == {"dielectric": "X7R", "tol": (-0.2, 0.8)}
-    assert net.get("C2").params["dielectric"] == "C0G"
+    assert net.get("C2").params == {"dielectric": "C0G", "v0": 1.5}
     assert net.get("C3").params["tc"] == pytest.approx((-750e-6, 750e-6))
     assert net.get("I1").value == 1e-3 and net.get("V1").value == 5.0
     assert any("control line '.tran' ignored" in w for w in net.warnings)
@@ -50,8 +50,13 @@ BAD = {
     "both ends on one node": ("V1 a 0 5\nC1 a a 1u\n", 2, "both ends of the capacitor"),
     "short line": ("V1 a 0 5\nR1 a b\n", 2, "needs two nodes and a value"),
     "bad value": ("V1 a 0 5\nR1 a 0 10q\n", 2, "R1: cannot read '10q'"),
-    "unknown parameter": ("V1 a 0 5\nR1 a 0 1k colour=red\n", 2, "unknown parameter 'colour=red'"),
-    "bad dielectric": ("V1 a 0 5\nR1 a b 1k\nC1 b 0 1u X9Q\n", 3, "unknown dielectric"),
+    "old key=value form": ("V1 a 0 5\nR1 a 0 1k tol=1%\n", 2,
+                           "'tol=1%' is the old key=value form; write annotations as bare tokens, e.g. R1 vdd rst 47k 1% 100ppm"),
+    "unknown annotation": ("V1 a 0 5\nR1 a 0 1k red\n", 2, "R1: cannot read 'red'; expected a tolerance (1%)"),
+    "bad dielectric": ("V1 a 0 5\nR1 a b 1k\nC1 b 0 1u X9Q\n", 3, "C1: cannot read 'X9Q'; expected a tolerance"),
+    "two tolerances": ("V1 a 0 5\nR1 a b 1k 1% 5%\nC1 b 0 1u\n", 2, "'5%' gives a second tol"),
+    "start voltage on a resistor": ("V1 a 0 5\nR1 a b 1k @2V\nC1 b 0 1u\n", 2, "R1: cannot read '@2V'"),
+    "annotation on a source": ("V1 a 0 5 1%\nR1 a 0 1k\n", 1, "sources take no annotations"),
     "empty": ("* nothing\n", None, "no element lines"),
 }
 
@@ -73,4 +78,17 @@ def test_cli_bad_netlist_is_one_line(run, tmp_path):
     assert result.exit_code == 2
     assert result.stderr.strip() == f"rcpick: error: {path} line 2: unknown element letter 'L' in 'L1'; accepted: R, C, V, I"
     missing = run("net", str(tmp_path / "none.cir"))
-    assert missing.exit_code == 2 and "cannot read" in missing.stderr
+    assert missing.exit_code == 2 and "none.cir: no such file" in missing.stderr
+
+
+def test_text_encodings(tmp_path):
+    from rcpick.netlist import read
+
+    text = "V1 in 0 5\nR1 in a 10k 1%\nC1 a 0 100n X7R\n"
+    (tmp_path / "bom.cir").write_bytes(b"\xef\xbb\xbf" + text.encode("utf-8"))
+    (tmp_path / "utf16.cir").write_text(text, encoding="utf-16")
+    for name in ("bom.cir", "utf16.cir"):
+        assert [e.name for e in read(tmp_path / name).elements] == ["V1", "R1", "C1"]
+    (tmp_path / "latin1.cir").write_bytes("* 1 \u00b5F\nV1 in 0 5\n".encode("latin-1"))
+    with pytest.raises(NetlistError, match=r"latin1.cir: not UTF-8 text: byte 4 is 0xb5"):
+        read(tmp_path / "latin1.cir")

@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 
-from rcpick import combos, netsearch, network, series
+from rcpick import combos, netsearch, nodal, series
 from rcpick.netlist import parse, read
 
 LADDER = parse("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nR2 a b 10k\nC2 b 0 100n\n")
@@ -23,7 +23,7 @@ def test_tau_bisection_equals_enumeration(target, c_range):
     found = netsearch.search(LADDER, varied, quantity, target, 8)
     # oracle: every combination evaluated (one batch of all networks), sorted by the documented key
     ii, jj = (a.ravel() for a in np.meshgrid(np.arange(len(r)), np.arange(len(c)), indexing="ij"))
-    taus = network.dominant_tau(LADDER, {"R1": r.value[ii], "C1": c.value[jj]}, len(ii))
+    taus = nodal.dominant_tau(LADDER, {"R1": r.value[ii], "C1": c.value[jj]}, len(ii))
     values = sorted(((round(abs(t / target - 1), 12), int(r.parts[i] + c.parts[j]), r.value[i], c.value[j]), i, j)
                     for t, i, j in zip(taus.tolist(), ii.tolist(), jj.tolist()))
     assert [tuple(row) for row in found.index.tolist()] == [(i, j) for _, i, j in values[:8]]
@@ -36,8 +36,8 @@ def test_delay_search_value_is_the_network_delay(run_json):
     best = doc["candidates"][0]
     r1, c1 = best["elements"]["R1"]["ohm"], best["elements"]["C1"]["farad"]
     net = read("docs/examples/reset-divider.cir").with_values({"R1": r1, "C1": c1})
-    resp = network.step_response(net)
-    t = network.crossing_time(resp, "rst", np.array([2.0]), np.array([1.0]))[0]
+    resp = nodal.step_response(net)
+    t = nodal.crossing_time(resp, "rst", np.array([2.0]), np.array([1.0]))[0]
     assert best["value"] == pytest.approx(t, rel=1e-9)
     assert abs(best["error"]) < 0.01
     sp = best["spread"]
@@ -73,12 +73,12 @@ def test_cutoff_at_a_node(run_json):
     best = doc["candidates"][0]
     values = {"R2": np.array([best["elements"]["R2"]["ohm"]]), "C2": np.array([best["elements"]["C2"]["farad"]])}
     net = read("docs/examples/two-stage.cir")
-    tau = network.dominant_tau(net, values, 1)
+    tau = nodal.dominant_tau(net, values, 1)
     fc = netsearch.corner_frequency(net, values, 1, "out", tau)[0]
     assert best["value"] == pytest.approx(fc, rel=1e-9)
     # at the corner the gain is 1/√2 of DC: check it directly
-    st = network.structure(net)
-    g, c, r, h = network.matrices(st, values, 1)
+    st = nodal.structure(net)
+    g, c, r, h = nodal.matrices(st, values, 1)
     x = np.linalg.solve(g[0] + 2j * np.pi * fc * c[0], r[0] - 2j * np.pi * fc * h[0])
     assert abs(x[st.row_of["out"]]) == pytest.approx(1 / np.sqrt(2), rel=1e-6)
 

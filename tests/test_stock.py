@@ -15,14 +15,29 @@ def write(tmp_path, text, name="stock.csv"):
     return path
 
 
-def test_demo_stock_loads_and_chooses_the_tightest_part():
+def test_demo_stock_loads_and_chooses_a_line_by_need_price_and_ask():
     demo = stocks.load("demo")
     assert demo.covers("resistance") and demo.covers("capacitance")
-    chosen = demo.by_value("resistance", 1e3, 1e6)
-    assert chosen[4.7e3].part_number == "DEMO-R0603-4K70-B"  # 0.1 % beats 1 %
-    assert chosen[4.7e3].tolerance == pytest.approx((-0.001, 0.001))
-    assert chosen[4.7e3].tcr == pytest.approx((-25e-6, 25e-6))
-    assert demo.find("capacitance", 100e-9).dielectric == "C0G"
+    # 4k7 is stocked at 1 % (0.004 each, 5000 on hand) and at 0.1 % (0.031 each, 800 on hand):
+    # the cheapest line that covers the need wins
+    assert demo.choose("resistance", 4.7e3, need=10).part_number == "DEMO-R0603-4K70-F"
+    # asking for 0.1 % leaves only the tight line
+    tight = demo.choose("resistance", 4.7e3, need=10, ask=stocks.Ask(tolerance=0.001))
+    assert tight.part_number == "DEMO-R0603-4K70-B" and tight.tcr == pytest.approx((-25e-6, 25e-6))
+    # 100n: X7R (20,000 on hand, 0.005) and C0G (300 on hand, 0.094); 500 boards need 500 parts
+    assert demo.choose("capacitance", 100e-9, need=500).part_number == "DEMO-C0603-100N-X7R"
+    assert demo.choose("capacitance", 100e-9, need=500, ask=stocks.Ask(dielectric="C0G")).part_number == \
+        "DEMO-C1206-100N-C0G"  # the only C0G line, though it falls short: the most on hand of those asked
+    assert demo.values("capacitance", 1e-9, 1e-6, stocks.Ask(dielectric="C0G")) == [1e-9, 4.7e-9, 10e-9, 100e-9]
+
+
+def test_a_line_that_covers_the_order_beats_a_cheaper_one_that_does_not(tmp_path):
+    path = write(tmp_path, "kind,value,tolerance,part_number,unit_price,on_hand\n"
+                 "C,100n,10%,CHEAP,0.001,100\nC,100n,10%,ENOUGH,0.002,5000\nC,100n,10%,UNCOUNTED,0.003,\n")
+    stock = stocks.load(path)
+    assert stock.choose("capacitance", 100e-9, need=50).part_number == "CHEAP"
+    assert stock.choose("capacitance", 100e-9, need=500).part_number == "ENOUGH"
+    assert stock.choose("capacitance", 100e-9, need=50_000).part_number == "UNCOUNTED"  # no count: assumed to cover
 
 
 def test_every_problem_is_reported_with_line_and_column(tmp_path):
@@ -87,13 +102,28 @@ def test_find_searches_only_stocked_values(run_json):
 
 
 def test_stock_tolerance_feeds_the_spread(run_json):
-    # 10 kΩ 0.1 % 25 ppm/°C with 100 nF C0G 5 % from the demo stock, fixed by the search to one design
+    # 10 kΩ 0.1 % 25 ppm/°C with 100 nF C0G 5 % from the demo stock, asked for by tolerance and dielectric
     doc = run_json("find", "--tau", "1ms", "--stock", "demo", "--r-parts", "1", "--c-parts", "1", "--rank", "error",
-                   "--top", "3", "--temp", "25")
-    (best,) = [c for c in doc["candidates"] if c["r"]["ohm"] == 10e3]
-    assert best["c"]["farad"] == 100e-9
+                   "--top", "3", "--temp", "25", "--r-tol", "0.1%", "--dielectric", "C0G")
+    best = doc["candidates"][0]
+    assert (best["r"]["ohm"], best["c"]["farad"]) == (10e3, 100e-9)
+    # only the 0.1 % resistor lines were asked for: 10K and 4K7
+    assert {c["r"]["ohm"] for c in doc["candidates"]} <= {10e3, 4.7e3}
     assert best["r"]["parts_detail"][0]["part_number"] == "DEMO-R0603-10K0-B"
+    assert best["c"]["parts_detail"][0]["part_number"] == "DEMO-C1206-100N-C0G"
     assert best["spread"]["worst_max"] == pytest.approx(1e-3 * 1.001 * 1.05, rel=1e-12)
+    # the table says which stock line each part came from (JSON: parts_detail[].stock.line)
+    assert best["r"]["parts_detail"][0]["stock"]["line"] == 8
+
+
+def test_boards_decide_the_line(run_json):
+    few = run_json("spread", "--r", "10k", "--c", "100n", "--stock", "demo", "--tau", "1ms", "--dielectric", "C0G")
+    assert few["design"]["c"]["parts_detail"][0]["part_number"] == "DEMO-C1206-100N-C0G"
+    many = run_json("find", "--tau", "1ms", "--stock", "demo", "--boards", "500", "--r-parts", "1", "--c-parts", "1",
+                    "--rank", "error", "--top", "10")
+    lines = {d["part_number"] for c in many["candidates"] for d in c["c"]["parts_detail"] if d["value"] == 100e-9}
+    assert lines == {"DEMO-C0603-100N-X7R"}  # the line with 20,000 on hand, not the one 200 short
+    assert all(c["cost_per_board"] is not None for c in many["candidates"])
 
 
 def test_stock_covering_only_capacitors_keeps_the_resistor_series(run_json, tmp_path):

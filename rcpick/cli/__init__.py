@@ -1,11 +1,23 @@
-"""The ``rcpick`` command line: one module per command, this one ties them together."""
+"""The ``rcpick`` command line: one module per command, loaded only when that command runs.
+
+``rcpick --help`` lists the commands from the short summaries below without
+importing them, so it starts without numpy; ``rcpick find`` imports only what
+``find`` needs. Every usage error, the option parser's included, is printed as
+one line in rcpick's form and exits with code 2.
+"""
 
 from __future__ import annotations
 
+import importlib
+import sys
+import warnings
+from typing import Any
+
 import typer
+from typer.core import TyperCommand, TyperGroup
 
 from rcpick import __version__
-from rcpick.cli import configcmd, find, net, spreadcmd, values
+from rcpick.cli import options
 
 CAUTION = (
     "Estimates only: verify every timing on real hardware before relying on it. "
@@ -13,16 +25,103 @@ CAUTION = (
     "voltage), follow the standard in force, local codes and licensed practice."
 )
 
+#: command → (module, one-line summary shown by rcpick --help)
+COMMANDS = {
+    "find": ("rcpick.cli.find", "Find the standard R and C values (single parts or pairs) that best hit a timing target."),
+    "spread": ("rcpick.cli.spread", "Analyse one design: worst case, Monte Carlo spread, yield, contributions."),
+    "net": ("rcpick.cli.net", "Order, natural time constants and step response of an RC network from a netlist."),
+    "values": ("rcpick.cli.values", "List the values of an IEC 60063 E-series, or the neighbours of one value."),
+    "config": ("rcpick.cli.config", "Show every effective setting of find and spread, and where it came from."),
+}
+
+
+def _one_line(message: str) -> str:
+    return " ".join(str(message).split())
+
+
+class LazyGroup(TyperGroup):
+    """A group whose commands are imported on first use; usage errors printed as one line."""
+
+    _resolving = False
+
+    def list_commands(self, ctx) -> list[str]:
+        return list(COMMANDS)
+
+    def get_help_option(self, ctx):
+        option = super().get_help_option(ctx)
+        if option is not None:
+            option.metavar = ""  # a switch: no type placeholder in the help
+            options.plain_coercion(type("Holder", (), {"params": [option]}))
+        return option
+
+    def get_command(self, ctx, cmd_name: str):
+        if cmd_name not in COMMANDS:
+            return None
+        module_name, summary = COMMANDS[cmd_name]
+        if not self._resolving:  # listing for --help: a light stand-in with the summary
+            return TyperCommand(name=cmd_name, help=summary, short_help=summary)
+        module = importlib.import_module(module_name)
+        return options.plain_coercion(typer.main.get_command(module.app))
+
+    def resolve_command(self, ctx, args):
+        self._resolving = True
+        try:
+            return super().resolve_command(ctx, args)
+        finally:
+            self._resolving = False
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra: Any):  # type: ignore[override]
+        argv = list(sys.argv[1:] if args is None else args)
+        options.TYPED[:] = argv
+        options.plain_coercion(self)
+        code: Any = 0
+        with warnings.catch_warnings():
+            # no library's warning reaches the user: rcpick says what matters in its own words
+            warnings.simplefilter("ignore")
+            try:
+                result = super().main(args=argv, prog_name=prog_name or "rcpick", complete_var=complete_var,
+                                      standalone_mode=False, **extra)
+                code = result if isinstance(result, int) else 0
+            except typer.Exit as stop:
+                code = stop.exit_code
+            except typer.Abort:
+                typer.echo("rcpick: stopped", err=True)
+                code = 1
+            except Exception as error:  # the option parser's own usage errors: one line, exit 2
+                if getattr(error, "exit_code", None) != 2 or not hasattr(error, "format_message"):
+                    raise
+                typer.echo(f"rcpick: error: {_usage_text(error)}", err=True)
+                code = 2
+        if standalone_mode:
+            sys.exit(code)
+        return code
+
+
+def _usage_text(error: Any) -> str:
+    message = _one_line(error.format_message())
+    param = getattr(error, "param", None)
+    flag = max(param.opts, key=len) if param is not None and getattr(param, "opts", None) else None
+    if flag and flag not in message:
+        message = f"{flag}: {message}"
+    hint = ""
+    ctx = getattr(error, "ctx", None)
+    if ctx is not None and ctx.command is not None and ctx.info_name:
+        path = ctx.command_path if hasattr(ctx, "command_path") else "rcpick"
+        hint = f" (see {path} --help)"
+    return message.rstrip(".") + hint
+
+
 app = typer.Typer(
     name="rcpick",
+    cls=LazyGroup,
     help=(
         "Pick standard resistor and capacitor values (IEC 60063 E-series) for an RC timing: "
-        "a time constant, a corner frequency, or a delay to a threshold.\n\n" + CAUTION
+        "a time constant, a corner frequency, a delay between two levels or an oscillator period.\n\n" + CAUTION
     ),
     no_args_is_help=True,
     add_completion=False,
     rich_markup_mode="rich",
-    pretty_exceptions_show_locals=False,
+    pretty_exceptions_enable=False,
     context_settings={"help_option_names": ["-h", "--help"]},
 )
 
@@ -35,16 +134,10 @@ def _version(show: bool) -> None:
 
 @app.callback()
 def _root(
-    version: bool = typer.Option(False, "--version", callback=_version, is_eager=True, help="Print the version and exit."),
+    version: bool = typer.Option(False, "--version", callback=_version, is_eager=True, metavar="",
+                                 help="Print the version and exit."),
 ) -> None:
     """Pick standard R and C values for an RC timing."""
-
-
-app.command("find", epilog=find.EPILOG)(find.command)
-app.command("spread", epilog=spreadcmd.EPILOG)(spreadcmd.command)
-app.command("values", epilog=values.EPILOG)(values.command)
-app.command("net", epilog=net.EPILOG)(net.command)
-app.command("config", epilog=configcmd.EPILOG)(configcmd.command)
 
 
 def main() -> None:

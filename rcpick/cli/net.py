@@ -1,15 +1,13 @@
-"""``rcpick net``: order, natural time constants and step response of an RC network."""
+"""``rcpick net``: order, natural time constants and step response of an RC network (parse → API → render)."""
 
 from __future__ import annotations
 
-import numpy as np
 import typer
 
-from rcpick import network
-from rcpick.cli.common import check_format, console, print_json, reports_errors
-from rcpick.errors import BadValue
-from rcpick.netlist import Netlist, read
-from rcpick.notation import format_si, parse_percent, parse_quantity
+from rcpick.cli import options as o
+from rcpick.errors import NotReached
+from rcpick.notation import format_si
+from rcpick.specs import NetworkSpec
 
 EPILOG = """[bold]Examples[/bold]
 
@@ -19,96 +17,39 @@ EPILOG = """[bold]Examples[/bold]
 
   rcpick net docs/examples/two-stage.cir --format json
 
-Netlist lines: R1 a b 10k, C1 b 0 100n, V1 in 0 5 (a step 0 → 5 V at t = 0), I1 a b 1m;
-* comments; node 0 is ground. In rcpick's notation M is mega (also Meg); SPICE's
-M (milli) is not used. [bold]Caution[/bold]: estimates only; verify on hardware.
+Netlist lines: R1 a b 10k 1% 100ppm, C1 b 0 100n X7R 10%, V1 in 0 5 (a step 0 → 5 V at
+t = 0), I1 a b 1m; @2.5V on a C line is its voltage at t = 0; * comments; node 0 is ground.
+In rcpick's notation M is mega (also Meg); SPICE's M (milli) is not used.
+[bold]Caution[/bold]: estimates only; verify on hardware.
 """
 
 
-def read_level(text: str) -> tuple[float, bool]:
-    """``--threshold`` for a network node: (volts, True) for ``2.0V``, (fraction, False) for ``0.7`` or ``70%``."""
-    stripped = text.strip()
-    if stripped[-1:] in ("V", "v"):
-        return parse_quantity(stripped, "voltage", option="--threshold", positive=False), True
-    try:
-        fraction = parse_percent(stripped, option="--threshold") if stripped.endswith("%") else float(stripped)
-    except ValueError:
-        raise BadValue(f"cannot read {text!r}; expected 0.7, 70% or a voltage such as 2.0V", option="--threshold",
-                       value=text) from None
-    if not 0 < fraction < 1:
-        raise BadValue(f"a fractional threshold must lie strictly between 0 and 1, got {fraction:g}", option="--threshold")
-    return fraction, False
-
-
-def threshold_volts(text: str, v0: float, v_final: float) -> float:
-    """``--threshold`` as volts: ``2.0V``, or a fraction/percent of the node's final value
-    (of its value just after the step when it decays towards 0)."""
-    level, is_volts = read_level(text)
-    if is_volts:
-        return level
-    return float(network.fractional_level(level, v0, v_final))
-
-
-def node_step(net: Netlist, node: str, threshold: str | None) -> dict:
-    """The ``step`` member: v(0+), final value and the threshold crossing at ``node``."""
-    if node not in net.nodes:
-        raise BadValue(f"no node {node!r} in {net.path}; nodes: {', '.join(net.nodes)}", option="--node", value=node)
-    resp = network.step_response(net)
-    v0 = float(resp.initial(node)[0])
-    v_final = float(resp.final(node)[0])
-    out = {"node": node, "v0": v0, "v_final": v_final, "threshold_v": None, "t_threshold_s": None}
-    if threshold is not None:
-        level = threshold_volts(threshold, v0, v_final)
-        taus = network.time_constants(net)[0]
-        horizon = 30 * (float(taus[0]) if len(taus) else 1.0)
-        t = float(network.crossing_time(resp, node, np.array([level]), np.array([horizon]))[0])
-        out["threshold_v"] = level
-        out["t_threshold_s"] = None if np.isnan(t) else t
-    return out
-
-
-def analyse(net: Netlist, node: str | None = None, threshold: str | None = None) -> dict:
-    """The JSON document of ``rcpick net`` (docs/json.md)."""
-    taus = network.time_constants(net)[0]
-    doc = {
-        "netlist": net.path,
-        "capacitors": len(net.of("C")),
-        "order": int(len(taus)),
-        "time_constants_s": [float(t) for t in taus],
-        "warnings": list(net.warnings),
-    }
-    first = network.first_order(net) if len(taus) == 1 else None
-    if first is not None:
-        doc.update(c_eq_farad=first.c_eq_farad, r_th_ohm=first.r_th_ohm, port=list(first.port))
-    if node is not None:
-        doc["step"] = node_step(net, node, threshold)
-    elif threshold is not None:
-        raise BadValue("--threshold needs --node (the node whose crossing is timed)", option="--threshold")
-    return doc
-
-
-@reports_errors
-def command(
-    file: str = typer.Argument(..., metavar="FILE", help="Netlist of R, C, V and I element lines."),
-    node: str = typer.Option(None, "--node", metavar="NODE", help="Report the step response at this node."),
-    threshold: str = typer.Option(None, "--threshold", metavar="LEVEL", help="With --node: time to reach this level: 2.0V, or 0.7 / 70% of the node's final value."),
-    fmt: str = typer.Option("table", "--format", metavar="table|json", help="Output: table or json."),
-) -> None:
+@o.reports_errors
+def command(ctx: typer.Context, **values) -> None:
     """Order, natural time constants and step response of an RC network from a netlist.
 
     Sources are zeroed (V shorted, I opened) for the order and time constants;
-    for the step response every source steps from 0 to its value at t = 0.
+    for the step response every source steps from 0 to its value at t = 0, and
+    each capacitor starts at 0 V or at the voltage its line gives.
     """
-    check_format(fmt)
-    if fmt == "csv":
-        raise BadValue("net prints table or json", option="--format", value=fmt)
-    net = read(file)
-    doc = analyse(net, node, threshold)
+    from rcpick.api import run_network
+
+    fmt = o.check_format(values.pop("fmt"), ("table", "json"))
+    spec = NetworkSpec.build(o.cli_layer(values))
+    result = run_network(spec)
+    doc = result.to_dict()
     if fmt == "json":
-        print_json(doc)
-        return
-    out = console()
-    out.print(f"[bold]Netlist[/bold] {net.path}: {len(net.elements)} elements, {doc['capacitors']} capacitor(s) drawn")
+        o.print_json(doc)
+    else:
+        render({**doc, "warnings": [w for w in doc["warnings"] if w != result.unreached]})
+    if result.unreached:
+        o.say_error(NotReached(result.unreached, setting="threshold"))
+        raise typer.Exit(2)
+
+
+def render(doc: dict) -> None:
+    out = o.console()
+    out.print(f"[bold]Netlist[/bold] {doc['netlist']}: {doc['capacitors']} capacitor(s) drawn")
     for message in doc["warnings"]:
         out.print(f"[yellow]Warning:[/yellow] {message}")
     out.print(f"[bold]Order[/bold] {doc['order']} (finite nonzero natural frequencies, sources zeroed: "
@@ -124,8 +65,13 @@ def command(
     if step:
         line = (f"[bold]Step at {step['node']}[/bold] v(0+) = {format_si(step['v0'], 'V', 4)}, "
                 f"final {format_si(step['v_final'], 'V', 4)}")
-        if step["threshold_v"] is not None:
-            when = format_si(step["t_threshold_s"], "s", 4) if step["t_threshold_s"] is not None else "never"
-            line += f"; reaches {format_si(step['threshold_v'], 'V', 4)} at {when}"
+        if step["threshold_v"] is not None and step["t_threshold_s"] is not None:
+            line += f"; reaches {format_si(step['threshold_v'], 'V', 4)} at {format_si(step['t_threshold_s'], 's', 4)}"
         out.print(line)
     out.print("[dim]Estimates only: verify on hardware.[/dim]")
+
+
+command.__signature__ = o.signature(NetworkSpec.declared(), [o.FORMAT_NO_CSV], arguments=("file",))  # type: ignore[attr-defined]
+
+app = typer.Typer(add_completion=False, rich_markup_mode="rich", pretty_exceptions_enable=False)
+o.register(app, "net", command, EPILOG)

@@ -7,7 +7,7 @@ natural frequencies s = −1/τ. rcpick's numbers must match to 1e-9 relative.
 
 import pytest
 
-from rcpick import network
+from rcpick import nodal
 from rcpick.netlist import parse
 
 NETWORKS = {
@@ -40,7 +40,7 @@ def lcapy_taus(text: str, node: str) -> list[float]:
 @pytest.mark.parametrize("name", NETWORKS)
 def test_time_constants_match_lcapy(name):
     text, node = NETWORKS[name]
-    ours = list(network.time_constants(parse(text))[0])
+    ours = list(nodal.time_constants(parse(text))[0])
     theirs = lcapy_taus(text, node)
     assert len(ours) == len(theirs)
     assert ours == pytest.approx(theirs, rel=1e-9)

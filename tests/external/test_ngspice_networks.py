@@ -10,7 +10,7 @@ import math
 import numpy as np
 import pytest
 
-from rcpick import network
+from rcpick import nodal
 from rcpick.netlist import parse
 from tests.external.spice import run_measure
 from tests.external.test_lcapy_networks import NETWORKS
@@ -32,11 +32,11 @@ def spice_text(text: str, stop_s: float, measures: list[str]) -> str:
 def test_crossing_times_match_ngspice(name, tmp_path):
     text, node = NETWORKS[name]
     net = parse(text)
-    resp = network.step_response(net)
+    resp = nodal.step_response(net)
     v0, v_final = float(resp.initial(node)[0]), float(resp.final(node)[0])
     level = v0 + 0.6 * (v_final - v0)
-    tau = float(network.time_constants(net)[0][0])
-    ours = float(network.crossing_time(resp, node, np.array([level]), np.array([30 * tau]))[0])
+    tau = float(nodal.time_constants(net)[0][0])
+    ours = float(nodal.crossing_time(resp, node, np.array([level]), np.array([30 * tau]))[0])
     direction = "RISE" if v_final > v0 else "FALL"
     spice = run_measure(spice_text(text, 4 * ours, [f".meas tran tx WHEN v({node})={level!r} {direction}=1"]),
                         tmp_path, "tx")
@@ -45,7 +45,7 @@ def test_crossing_times_match_ngspice(name, tmp_path):
 
 def test_coupled_jump_matches_ngspice(tmp_path):
     text, node = NETWORKS["coupled"]
-    resp = network.step_response(parse(text))
+    resp = nodal.step_response(parse(text))
     ours = float(resp.initial(node)[0])
     assert ours == pytest.approx(5 * 22 / 122, rel=1e-12)  # Vs·C1/(C + C1), facts.md §6
     spice = run_measure(spice_text(text, 1e-3, [f".meas tran vjump FIND v({node}) AT=1e-9"]), tmp_path, "vjump")

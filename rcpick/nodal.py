@@ -37,7 +37,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from rcpick.netlist import GROUND, Netlist, NetlistError, supernodes
+from rcpick.netlist import GROUND, Netlist, NetlistError, Union, supernodes
 
 #: Relative size below which an eigenvalue counts as zero.
 ZERO = 1e-10
@@ -65,9 +65,6 @@ class Structure:
     @property
     def size(self) -> int:
         return len(self.rows)
-
-    def node_offset(self, node: str) -> float:
-        return self.offset[node]
 
 
 def structure(net: Netlist) -> Structure:
@@ -207,25 +204,23 @@ def _capacitive_null(st: Structure) -> np.ndarray:
     vector (its common mode).
     """
     n = st.size
-    parent = list(range(n))
-
-    def find(i):
-        while parent[i] != i:
-            parent[i] = parent[parent[i]]
-            i = parent[i]
-        return i
-
-    grounded = set()
-    touched = set()
+    groups = Union()
+    grounded: set[int] = set()
+    touched: set[int] = set()
     for e in st.net.of("C"):
         ia, ib = st.row_of[e.a], st.row_of[e.b]
         for i in (ia, ib):
             if i is not None:
                 touched.add(i)
+                groups.find(str(i))
         if ia is None or ib is None:
-            grounded.add(ia if ia is not None else ib)
-        elif find(ia) != find(ib):
-            parent[find(ia)] = find(ib)
+            grounded.add(ia if ia is not None else ib)  # type: ignore[arg-type]
+        else:
+            groups.join(str(ia), str(ib))
+
+    def find(i: int) -> str:
+        return groups.find(str(i))
+
     roots_grounded = {find(i) for i in grounded if i is not None}
     basis = []
     for i in range(n):
@@ -276,8 +271,25 @@ class Response:
         return self.start[:, row] + self.st.offset[node]
 
 
+def initial_charge(st: Structure, values: dict[str, np.ndarray] | None, batch: int) -> np.ndarray:
+    """Charge (C) on each unknown's plates before the step, from the capacitors' start voltages (``@V``)."""
+    q0 = np.zeros((batch, st.size))
+    upper = {k.upper(): np.asarray(v, dtype=float) for k, v in (values or {}).items()}
+    for e in st.net.of("C"):
+        v0 = e.params.get("v0", 0.0)
+        if not v0:
+            continue
+        cap = upper.get(e.name.upper(), np.full(batch, e.value))
+        for node, sign in ((e.a, 1.0), (e.b, -1.0)):
+            row = st.row_of[node]
+            if row is not None:
+                q0[:, row] += sign * cap * v0
+    return q0
+
+
 def step_response(net: Netlist, values: dict[str, np.ndarray] | None = None, batch: int = 1) -> Response:
-    """The exact response to the step of every source (all sources 0 before t = 0, all capacitors empty)."""
+    """The exact response to the step of every source (all sources 0 before t = 0; each capacitor at its
+    start voltage, 0 V unless its line gives ``@V``)."""
     st = structure(net)
     g_mat, c_mat, r, h = matrices(st, values, batch)
     found = modes(g_mat, c_mat)
@@ -288,9 +300,11 @@ def step_response(net: Netlist, values: dict[str, np.ndarray] | None = None, bat
     if np.any(np.max(np.abs(residual), axis=1) > 1e-6 * scale):
         raise NetlistError(f"{net.path}: a current source drives a node with no resistive path: no steady state")
     null = _capacitive_null(st)
-    # Just after the step: charge kept where capacitors are; KCL at once where they are not.
+    # Just after the step: each capacitive group keeps the charge it held before (from the capacitors' start
+    # voltages, zero by default); KCL holds at once where there is no capacitance.
+    q0 = initial_charge(st, values, batch)
     lhs = np.concatenate([c_mat, np.einsum("nk,bnm->bkm", null, g_mat)], axis=1)
-    rhs = np.concatenate([-h, np.einsum("nk,bn->bk", null, r)], axis=1)
+    rhs = np.concatenate([q0 - h, np.einsum("nk,bn->bk", null, r)], axis=1)
     start = np.einsum("bij,bj->bi", np.linalg.pinv(lhs), rhs)
     delta = start - particular
     proj = np.einsum("bnk,bnm,bm->bk", found.phi, c_mat, delta)
@@ -299,10 +313,16 @@ def step_response(net: Netlist, values: dict[str, np.ndarray] | None = None, bat
 
 
 def fractional_level(fraction, v0, v_final):
-    """Volts for a threshold given as a fraction: of the node's final value, or of its value just after
-    the step when it decays towards 0 (whichever is larger in size). Works on scalars and arrays."""
+    """Volts for a threshold given as a fraction: the fraction of the way from the node's lower to its higher
+    end value (the smaller and the larger of v(0+) and the final value). Rising from 0 this is a fraction of
+    the final value, falling to 0 a fraction of the start value, as for a lone R and C. NaN where the node
+    does not move (no swing to take a fraction of). Works on scalars and arrays."""
     v0, v_final = np.asarray(v0, dtype=float), np.asarray(v_final, dtype=float)
-    return fraction * np.where(np.abs(v_final) >= np.abs(v0), v_final, v0)
+    low, high = np.minimum(v0, v_final), np.maximum(v0, v_final)
+    swing = high - low
+    scale = np.maximum(np.abs(v0), np.abs(v_final))
+    moves = swing > 1e-12 * np.where(scale > 0, scale, 1.0)
+    return np.where(moves, low + fraction * swing, np.nan)
 
 
 def crossing_time(resp: Response, node: str, level: np.ndarray, horizon: np.ndarray, steps: int = 160) -> np.ndarray:
