@@ -16,7 +16,7 @@ from pathlib import Path
 
 import numpy as np
 
-from rcpick import combos, netsearch, nodal, series
+from rcpick import combos, netsearch, series
 from rcpick.netlist import read
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "docs" / "examples"

@@ -18,26 +18,59 @@ from typing import TYPE_CHECKING, Any
 __version__ = "0.2.0"
 
 __all__ = [
-    "find", "spread", "network", "read_stock",
-    "FindResult", "SpreadResult", "NetworkResult", "Candidate", "Position", "Part", "Spread",
-    "FindSpec", "SpreadSpec", "NetworkSpec",
-    "RcpickError", "BadValue", "UnknownName", "ClashingOptions", "Unreachable", "NotReached",
+    "find",
+    "spread",
+    "network",
+    "read_stock",
+    "series_values",
+    "FindResult",
+    "SpreadResult",
+    "NetworkResult",
+    "Candidate",
+    "Position",
+    "Part",
+    "Spread",
+    "FindSpec",
+    "SpreadSpec",
+    "NetworkSpec",
+    "RcpickError",
+    "BadValue",
+    "UnknownName",
+    "ClashingOptions",
+    "Unreachable",
+    "NotReached",
     "__version__",
 ]
 
 _WHERE = {
-    "find": "rcpick.api", "spread": "rcpick.api", "network": "rcpick.api", "read_stock": "rcpick.api",
-    "FindResult": "rcpick.results", "SpreadResult": "rcpick.results", "NetworkResult": "rcpick.results",
-    "Candidate": "rcpick.results", "Position": "rcpick.results", "Part": "rcpick.results", "Spread": "rcpick.results",
-    "FindSpec": "rcpick.specs", "SpreadSpec": "rcpick.specs", "NetworkSpec": "rcpick.specs",
-    "RcpickError": "rcpick.errors", "BadValue": "rcpick.errors", "UnknownName": "rcpick.errors",
-    "ClashingOptions": "rcpick.errors", "Unreachable": "rcpick.errors", "NotReached": "rcpick.errors",
+    "find": "rcpick.api",
+    "spread": "rcpick.api",
+    "network": "rcpick.api",
+    "read_stock": "rcpick.api",
+    "series_values": "rcpick.series",
+    "FindResult": "rcpick.results",
+    "SpreadResult": "rcpick.results",
+    "NetworkResult": "rcpick.results",
+    "Candidate": "rcpick.results",
+    "Position": "rcpick.results",
+    "Part": "rcpick.results",
+    "Spread": "rcpick.results",
+    "FindSpec": "rcpick.specs",
+    "SpreadSpec": "rcpick.specs",
+    "NetworkSpec": "rcpick.specs",
+    "RcpickError": "rcpick.errors",
+    "BadValue": "rcpick.errors",
+    "UnknownName": "rcpick.errors",
+    "ClashingOptions": "rcpick.errors",
+    "Unreachable": "rcpick.errors",
+    "NotReached": "rcpick.errors",
 }
 
 if TYPE_CHECKING:  # pragma: no cover - for type checkers and editors
     from rcpick.api import find, network, read_stock, spread
     from rcpick.errors import BadValue, ClashingOptions, NotReached, RcpickError, UnknownName, Unreachable
     from rcpick.results import Candidate, FindResult, NetworkResult, Part, Position, Spread, SpreadResult
+    from rcpick.series import series_values
     from rcpick.specs import FindSpec, NetworkSpec, SpreadSpec
 
 

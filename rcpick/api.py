@@ -21,12 +21,12 @@ from typing import Any
 
 import numpy as np
 
-from rcpick import assess, combos, ranking, search, variation as engine
+from rcpick import assess, combos, ranking, search
 from rcpick import stock as stocks
+from rcpick import variation as engine
 from rcpick.errors import RcpickError, Unreachable
 from rcpick.notation import format_percent, format_si
-from rcpick.results import (Candidate, FindResult, NetworkResult, Position, Spread, SpreadResult, finite,
-                            part_of)
+from rcpick.results import Candidate, FindResult, NetworkResult, Position, Spread, SpreadResult, finite, part_of
 from rcpick.specs import FindSpec, Layer, NetworkSpec, Plan, SpreadSpec, api_layer, file_layer
 
 Value = str | float | int | None
@@ -41,20 +41,60 @@ def _layers(values: dict[str, Any], config: str | Path | None) -> list[Layer]:
     return layers
 
 
-def find(*, tau: Value = None, cutoff: Value = None, delay: Value = None, period: Value = None,
-         threshold: Value = None, from_level: Value = None, thresholds: Any = None, supply: Value = None,
-         falling: bool | None = None, leak: Value = None, limit: str | None = None,
-         r_series: str | None = None, r_min: Value = None, r_max: Value = None, r_parts: int | None = None,
-         fix_r: Value = None, c_series: str | None = None, c_min: Value = None, c_max: Value = None,
-         c_parts: int | None = None, fix_c: Value = None, r_tol: Any = None, r_tcr: Any = None,
-         r_tech: str | None = None, c_tol: Any = None, dielectric: str | None = None, c_tc: Any = None,
-         c_bias_loss: Value = None, c_age: Value = None, temp: Any = None, window: Any = None,
-         threshold_tol: Any = None, dist: str | None = None, samples: Value = None, seed: Value = None,
-         lot_share: Value = None, rank: str | None = None, top: Value = None, min_yield: Value = None,
-         r_power: Value = None, r_voltage: Value = None, c_voltage: Value = None, derate: Any = None,
-         stock: str | Path | None = None, boards: Value = None, spares: Value = None, net: str | Path | None = None,
-         vary: Any = None, node: str | None = None, config: str | Path | None = None,
-         progress: Progress = None) -> FindResult:
+def find(
+    *,
+    tau: Value = None,
+    cutoff: Value = None,
+    delay: Value = None,
+    period: Value = None,
+    threshold: Value = None,
+    from_level: Value = None,
+    thresholds: Any = None,
+    supply: Value = None,
+    falling: bool | None = None,
+    leak: Value = None,
+    limit: str | None = None,
+    r_series: str | None = None,
+    r_min: Value = None,
+    r_max: Value = None,
+    r_parts: int | None = None,
+    fix_r: Value = None,
+    c_series: str | None = None,
+    c_min: Value = None,
+    c_max: Value = None,
+    c_parts: int | None = None,
+    fix_c: Value = None,
+    r_tol: Any = None,
+    r_tcr: Any = None,
+    r_tech: str | None = None,
+    c_tol: Any = None,
+    dielectric: str | None = None,
+    c_tc: Any = None,
+    c_bias_loss: Value = None,
+    c_age: Value = None,
+    temp: Any = None,
+    window: Any = None,
+    threshold_tol: Any = None,
+    dist: str | None = None,
+    samples: Value = None,
+    seed: Value = None,
+    lot_share: Value = None,
+    rank: str | None = None,
+    top: Value = None,
+    min_yield: Value = None,
+    r_power: Value = None,
+    r_voltage: Value = None,
+    c_voltage: Value = None,
+    derate: Any = None,
+    stock: str | Path | None = None,
+    boards: Value = None,
+    spares: Value = None,
+    net: str | Path | None = None,
+    vary: Any = None,
+    node: str | None = None,
+    config: str | Path | None = None,
+    progress: Progress = None,
+) -> FindResult:
     """Search standard parts for a timing target and rank the candidates by their spread.
 
     Give exactly one target: ``tau``, ``cutoff``, ``delay`` (with ``threshold``) or ``period`` (with
@@ -66,16 +106,46 @@ def find(*, tau: Value = None, cutoff: Value = None, delay: Value = None, period
     return run_find(spec, progress=progress)
 
 
-def spread(*, r: Value, c: Value, tau: Value = None, cutoff: Value = None, delay: Value = None,
-           period: Value = None, threshold: Value = None, from_level: Value = None, thresholds: Any = None,
-           supply: Value = None, falling: bool | None = None, leak: Value = None, limit: str | None = None,
-           r_tol: Any = None, r_tcr: Any = None, r_tech: str | None = None, c_tol: Any = None,
-           dielectric: str | None = None, c_tc: Any = None, c_bias_loss: Value = None, c_age: Value = None,
-           temp: Any = None, window: Any = None, threshold_tol: Any = None, dist: str | None = None,
-           samples: Value = None, seed: Value = None, lot_share: Value = None, r_power: Value = None,
-           r_voltage: Value = None, c_voltage: Value = None, derate: Any = None, stock: str | Path | None = None,
-           boards: Value = None, spares: Value = None, config: str | Path | None = None,
-           progress: Progress = None) -> SpreadResult:
+def spread(
+    *,
+    r: Value,
+    c: Value,
+    tau: Value = None,
+    cutoff: Value = None,
+    delay: Value = None,
+    period: Value = None,
+    threshold: Value = None,
+    from_level: Value = None,
+    thresholds: Any = None,
+    supply: Value = None,
+    falling: bool | None = None,
+    leak: Value = None,
+    limit: str | None = None,
+    r_tol: Any = None,
+    r_tcr: Any = None,
+    r_tech: str | None = None,
+    c_tol: Any = None,
+    dielectric: str | None = None,
+    c_tc: Any = None,
+    c_bias_loss: Value = None,
+    c_age: Value = None,
+    temp: Any = None,
+    window: Any = None,
+    threshold_tol: Any = None,
+    dist: str | None = None,
+    samples: Value = None,
+    seed: Value = None,
+    lot_share: Value = None,
+    r_power: Value = None,
+    r_voltage: Value = None,
+    c_voltage: Value = None,
+    derate: Any = None,
+    stock: str | Path | None = None,
+    boards: Value = None,
+    spares: Value = None,
+    config: str | Path | None = None,
+    progress: Progress = None,
+) -> SpreadResult:
     """Analyse one design (``r="4k7+330"``, ``c="47n//47n"``): worst case, Monte Carlo, yield, contributions.
 
     Without a target the spread is of tau, relative to the design's nominal value.
@@ -88,8 +158,9 @@ def spread(*, r: Value, c: Value, tau: Value = None, cutoff: Value = None, delay
 
 def network(file: str | Path, *, node: str | None = None, threshold: Value = None) -> NetworkResult:
     """Order, natural time constants and step response of the RC network in a netlist file."""
-    spec = NetworkSpec.build(api_layer({k: v for k, v in dict(file=file, node=node, threshold=threshold).items()
-                                        if v is not None}))
+    spec = NetworkSpec.build(
+        api_layer({k: v for k, v in dict(file=file, node=node, threshold=threshold).items() if v is not None})
+    )
     return run_network(spec)
 
 
@@ -103,6 +174,7 @@ def read_stock(path: str | Path) -> stocks.Stock:
 
 # --- runs ---------------------------------------------------------------------------
 
+
 def _families(plan: Plan) -> tuple[str, str]:
     return plan.r.model.name or "resistor", plan.models.dielectric.code
 
@@ -115,10 +187,17 @@ def _model_text(parts, letter: str) -> str:
 
 def settings_dict(plan: Plan, spec) -> dict:
     cond = plan.conditions
-    return {"r_model": _model_text(plan.r, "r"), "c_model": _model_text(plan.c, "c"),
-            "temp_c": list(cond.temp_c), "window": [finite(w) for w in cond.window], "dist": cond.dist,
-            "samples": cond.samples, "seed": cond.seed, "threshold_band": list(cond.level_band),
-            "lot_share": cond.lot_share}
+    return {
+        "r_model": _model_text(plan.r, "r"),
+        "c_model": _model_text(plan.c, "c"),
+        "temp_c": list(cond.temp_c),
+        "window": [finite(w) for w in cond.window],
+        "dist": cond.dist,
+        "samples": cond.samples,
+        "seed": cond.seed,
+        "threshold_band": list(cond.level_band),
+        "lot_share": cond.lot_share,
+    }
 
 
 def _pct(band: tuple[float, float]) -> str:
@@ -166,8 +245,9 @@ def resolved_settings(spec, plan: Plan | None) -> list[tuple[str, Any, str]]:
     return out
 
 
-def run_find(spec: FindSpec, *, progress: Progress = None,
-             query_extra: list[tuple[str, Any, str]] | None = None) -> FindResult:
+def run_find(
+    spec: FindSpec, *, progress: Progress = None, query_extra: list[tuple[str, Any, str]] | None = None
+) -> FindResult:
     """Run a find spec (what :func:`find` and ``rcpick find`` do)."""
     if spec.net is not None:
         from rcpick import netfind
@@ -176,6 +256,7 @@ def run_find(spec: FindSpec, *, progress: Progress = None,
     with spec.naming():
         plan = spec.plan()
         target, cond = plan.target, plan.conditions
+        assert target is not None  # a complete find spec has a target
         notes: list[str] = []
         pool_info = None
         if spec.rank == "error":
@@ -189,33 +270,68 @@ def run_find(spec: FindSpec, *, progress: Progress = None,
                 raise Unreachable(
                     "no allowed combination has its nominal value inside the window "
                     f"{_window_text(target, cond.window)}; widen {{window}} or the ranges, or rank by error "
-                    "({rank} error)")
+                    "({rank} error)"
+                )
             shortlist = pool.shortlist
-            pool_info = {"in_window": pool.in_window, "analysed": len(pool.shortlist), "capped": pool.capped,
-                         "cap": search.POOL_CAP,
-                         "pairs_dropped": (len(plan.r.combos) - len(r_use)) + (len(plan.c.combos) - len(c_use))}
+            pool_info = {
+                "in_window": pool.in_window,
+                "analysed": len(pool.shortlist),
+                "capped": pool.capped,
+                "cap": search.POOL_CAP,
+                "pairs_dropped": (len(plan.r.combos) - len(r_use)) + (len(plan.c.combos) - len(c_use)),
+            }
             if pool.capped:
-                notes.append(f"Analysed {len(pool.shortlist)} of {pool.in_window:,} combinations inside the window "
-                             f"(cap {search.POOL_CAP}: an equal share per part count, smallest |error| first).")
+                notes.append(
+                    f"Analysed {len(pool.shortlist)} of {pool.in_window:,} combinations inside the window "
+                    f"(cap {search.POOL_CAP}: an equal share per part count, smallest |error| first)."
+                )
         designs = len(shortlist) if spec.rank in ("yield", "cost") else min(spec.top, len(shortlist))
         with _progress(progress, engine.evaluations(designs, cond.samples, cond.temp_c)) as step:
-            assessed = assess.assess(shortlist, target, plan.r, plan.c, cond, spec.rank, spec.top,
-                                     families=_families(plan), min_yield=spec.min_yield, progress=step)
+            assessed = assess.assess(
+                shortlist,
+                target,
+                plan.r,
+                plan.c,
+                cond,
+                spec.rank,
+                spec.top,
+                families=_families(plan),
+                min_yield=spec.min_yield,
+                progress=step,
+            )
         candidates = candidates_of(assessed, plan)
         if len(candidates) < spec.top and pool_info is not None:
-            notes.append(f"{len(candidates)} listed: only {pool_info['analysed']} combinations have their nominal "
-                         f"value inside the window.")
-        analysis = {"rank": spec.rank, "rule": ranking.rule_text(spec.rank, target.limit), "pool": pool_info,
-                    "settings": settings_dict(plan, spec), "stock": plan.stock.path if plan.stock else None}
+            notes.append(
+                f"{len(candidates)} listed: only {pool_info['analysed']} combinations have their nominal "
+                f"value inside the window."
+            )
+        analysis = {
+            "rank": spec.rank,
+            "rule": ranking.rule_text(spec.rank, target.limit),
+            "pool": pool_info,
+            "settings": settings_dict(plan, spec),
+            "stock": plan.stock.path if plan.stock else None,
+        }
         result = FindResult(
-            spec=spec, target=target, candidates=candidates, window=assessed.window,
+            spec=spec,
+            target=target,
+            candidates=candidates,
+            window=assessed.window,
             searched={"r_combinations": len(plan.r.combos), "c_combinations": len(plan.c.combos)},
-            descriptions={"r": plan.r.description, "c": plan.c.description,
-                          "r_model": _model_text(plan.r, "r"), "c_model": _model_text(plan.c, "c")},
-            analysis=analysis, warnings=[w for w in plan.warnings], notes=notes,
+            descriptions={
+                "r": plan.r.description,
+                "c": plan.c.description,
+                "r_model": _model_text(plan.r, "r"),
+                "c_model": _model_text(plan.c, "c"),
+            },
+            analysis=analysis,
+            warnings=[w for w in plan.warnings],
+            notes=notes,
             recommendation=recommendation(candidates, target, spec.rank, assessed.window),
-            rule=ranking.rule_text(spec.rank, target.limit), settings=resolved_settings(spec, plan),
-            query_extra=list(query_extra or []))
+            rule=ranking.rule_text(spec.rank, target.limit),
+            settings=resolved_settings(spec, plan),
+            query_extra=list(query_extra or []),
+        )
     result.warnings = [_spell(w, spec) for w in result.warnings]
     return result
 
@@ -255,7 +371,7 @@ class _progress:
 
     def __enter__(self) -> Progress:
         if self.step is not None and hasattr(self.step, "start"):
-            self.step.start(self.total)  # type: ignore[union-attr]
+            self.step.start(self.total)
         return self.step
 
     def __exit__(self, *exc) -> None:
@@ -264,8 +380,10 @@ class _progress:
 
 def _position(combos_: combos.Combos, index: int, models, parts_info) -> Position:
     values = combos_.parts_of(index)
-    parts = tuple(part_of(combos_.kind, v, m, parts_info.lines.get(float(v)) if v in parts_info.by_value else None)
-                  for v, m in zip(values, models))
+    parts = tuple(
+        part_of(combos_.kind, v, m, parts_info.lines.get(float(v)) if v in parts_info.by_value else None)
+        for v, m in zip(values, models)
+    )
     return Position(combos_.kind, float(combos_.value[index]), combos.ARRANGEMENTS[int(combos_.wiring[index])], parts)
 
 
@@ -273,31 +391,52 @@ def candidates_of(assessed: assess.Assessed, plan: Plan) -> list[Candidate]:
     """Result dataclasses of the assessed candidates, in their order."""
     sl = assessed.shortlist
     target = plan.target
+    assert target is not None
     out = []
     for k in range(len(sl)):
         ri, ci = int(sl.r_index[k]), int(sl.c_index[k])
         r_pos = _position(sl.r, ri, assessed.r_models[k], plan.r)
         c_pos = _position(sl.c, ci, assessed.c_models[k], plan.c)
         value = float(target.quantity(r_pos.value, c_pos.value))
-        sp = Spread(finite(assessed.worst_min[k]), finite(assessed.worst_max[k]), finite(assessed.p_low[k]),
-                    finite(assessed.p_median[k]), finite(assessed.p_high[k]), finite(assessed.sigma[k]),
-                    float(assessed.yield_[k]), (float(assessed.yield_low[k]), float(assessed.yield_high[k])),
-                    int(assessed.never[k]))
+        sp = Spread(
+            finite(assessed.worst_min[k]),
+            finite(assessed.worst_max[k]),
+            finite(assessed.p_low[k]),
+            finite(assessed.p_median[k]),
+            finite(assessed.p_high[k]),
+            finite(assessed.sigma[k]),
+            float(assessed.yield_[k]),
+            (float(assessed.yield_low[k]), float(assessed.yield_high[k])),
+            int(assessed.never[k]),
+        )
         cost = None
         prices = [p.unit_price for p in r_pos.parts + c_pos.parts]
         if prices and all(p is not None for p in prices):
             cost = float(sum(prices))  # type: ignore[arg-type]
-        out.append(Candidate(rank=k + 1, value=value, error=float(target.error(value)),
-                             parts=len(r_pos.parts) + len(c_pos.parts), spread=sp, r=r_pos, c=c_pos,
-                             tau_s=r_pos.value * c_pos.value, cost_per_board=cost, flags=tuple(assessed.flags[k])))
+        out.append(
+            Candidate(
+                rank=k + 1,
+                value=value,
+                error=float(target.error(value)),
+                parts=len(r_pos.parts) + len(c_pos.parts),
+                spread=sp,
+                r=r_pos,
+                c=c_pos,
+                tau_s=r_pos.value * c_pos.value,
+                cost_per_board=cost,
+                flags=tuple(assessed.flags[k]),
+            )
+        )
     return out
 
 
 def _relative_span(sp: Spread, target) -> str:
     if sp.worst_min is None or sp.worst_max is None:
         return "worst case never reaches the level"
-    return (f"worst case {format_percent(sp.worst_min / target.value - 1, signed=True)}…"
-            f"{format_percent(sp.worst_max / target.value - 1, signed=True)}")
+    return (
+        f"worst case {format_percent(sp.worst_min / target.value - 1, signed=True)}…"
+        f"{format_percent(sp.worst_max / target.value - 1, signed=True)}"
+    )
 
 
 def recommendation(candidates: list[Candidate], target, rank: str, window: tuple[float, float]) -> str:
@@ -309,7 +448,9 @@ def recommendation(candidates: list[Candidate], target, rank: str, window: tuple
     bits = [f"Build rank 1, {best.wiring}"]
     why = []
     if sp.yield_ is not None and sp.yield_ci is not None:
-        why.append(f"yield {sp.yield_ * 100:.1f} % (95 % interval {sp.yield_ci[0] * 100:.1f}…{sp.yield_ci[1] * 100:.1f} %)")
+        why.append(
+            f"yield {sp.yield_ * 100:.1f} % (95 % interval {sp.yield_ci[0] * 100:.1f}…{sp.yield_ci[1] * 100:.1f} %)"
+        )
     why.append(f"{best.parts} parts")
     span = _relative_span(sp, target)
     inside = not any("worst case" in f for f in best.flags)
@@ -322,7 +463,7 @@ def recommendation(candidates: list[Candidate], target, rank: str, window: tuple
         why.append(f"{best.cost_per_board:.4g} per board")
     fewer = [c for c in candidates[1:] if c.parts < best.parts]
     if rank == "yield" and fewer and sp.yield_ci is not None:
-        why.append(f"its yield is above every design with fewer parts beyond the intervals")
+        why.append("its yield is above every design with fewer parts beyond the intervals")
     elif rank == "yield" and len(candidates) > 1 and sp.yield_ci is not None:
         tied = [c for c in candidates[1:] if c.spread.yield_ci and c.spread.yield_ci[1] >= sp.yield_ci[0]]
         if tied:
@@ -335,8 +476,10 @@ def recommendation(candidates: list[Candidate], target, rank: str, window: tuple
 
 # --- one design ---------------------------------------------------------------------
 
-def run_spread(spec: SpreadSpec, *, progress: Progress = None,
-               query_extra: list[tuple[str, Any, str]] | None = None) -> SpreadResult:
+
+def run_spread(
+    spec: SpreadSpec, *, progress: Progress = None, query_extra: list[tuple[str, Any, str]] | None = None
+) -> SpreadResult:
     """Run a spread spec (what :func:`spread` and ``rcpick spread`` do)."""
     from rcpick.specs import Parts, load_stock, stock_warnings
 
@@ -352,10 +495,22 @@ def run_spread(spec: SpreadSpec, *, progress: Progress = None,
         stock = load_stock(spec.stock)
         from rcpick import specs as sp_mod
 
-        r_info = Parts(r_combo, "", mdl.r, *sp_mod._stock_models(spec, stock, "resistance", r_parts, mdl.r, mdl),
-                       practical=sp_mod.practical_range("resistance", spec.r_tech), span=(r_parts[0], r_parts[0]))
-        c_info = Parts(c_combo, "", mdl.c, *sp_mod._stock_models(spec, stock, "capacitance", c_parts, mdl.c, mdl),
-                       practical=sp_mod.practical_range("capacitance", mdl.dielectric.code), span=(c_parts[0], c_parts[0]))
+        r_info = Parts(
+            r_combo,
+            "",
+            mdl.r,
+            *sp_mod._stock_models(spec, stock, "resistance", r_parts, mdl.r, mdl),
+            practical=sp_mod.practical_range("resistance", spec.r_tech),
+            span=(r_parts[0], r_parts[0]),
+        )
+        c_info = Parts(
+            c_combo,
+            "",
+            mdl.c,
+            *sp_mod._stock_models(spec, stock, "capacitance", c_parts, mdl.c, mdl),
+            practical=sp_mod.practical_range("capacitance", mdl.dielectric.code),
+            span=(c_parts[0], c_parts[0]),
+        )
         cond = spec.conditions()
         if target.kind in ("delay", "period"):
             engine.check_level_band(target, cond.level_band)
@@ -365,48 +520,96 @@ def run_spread(spec: SpreadSpec, *, progress: Progress = None,
         worst_min, worst_max = (float(v[0]) for v in engine.worst_case(study))
         window_abs = assess.window_of(target, cond.window) if has_target else None
         nominal = float(study.nominal[0])
-        finite_lo = [v for v in (worst_min, window_abs[0] if window_abs else None) if v is not None and math.isfinite(v)]
-        finite_hi = [v for v in (worst_max, window_abs[1] if window_abs else None) if v is not None and math.isfinite(v)]
+        finite_lo = [
+            v for v in (worst_min, window_abs[0] if window_abs else None) if v is not None and math.isfinite(v)
+        ]
+        finite_hi = [
+            v for v in (worst_max, window_abs[1] if window_abs else None) if v is not None and math.isfinite(v)
+        ]
         low_edge = min(finite_lo) if finite_lo else nominal * 0.5
         high_edge = max(finite_hi) if finite_hi else nominal * 1.5
         pad = (high_edge - low_edge) * 0.02 or abs(high_edge) * 1e-6
         with _progress(progress, engine.evaluations(1, cond.samples, cond.temp_c)) as step:
-            mc = engine.monte_carlo(study, cond.samples, cond.seed, cond.dist, window_abs, lot_share=cond.lot_share,
-                                    histogram_range=(low_edge - pad, high_edge + pad), bins=HISTOGRAM_BINS,
-                                    progress=step)
+            mc = engine.monte_carlo(
+                study,
+                cond.samples,
+                cond.seed,
+                cond.dist,
+                window_abs,
+                lot_share=cond.lot_share,
+                histogram_range=(low_edge - pad, high_edge + pad),
+                bins=HISTOGRAM_BINS,
+                progress=step,
+            )
         shares = engine.contributions(study)[0]
         plan_like = Plan(target, r_info, c_info, cond, mdl, warnings, stock)
         flags = assess.practical_flags(shortlist, r_info, c_info, (mdl.r.name, mdl.dielectric.code))[0]
-        inside = window_abs is not None and worst_min >= window_abs[0] * (1 - 1e-12) and \
-            worst_max <= window_abs[1] * (1 + 1e-12)
+        inside = (
+            window_abs is not None
+            and worst_min >= window_abs[0] * (1 - 1e-12)
+            and worst_max <= window_abs[1] * (1 + 1e-12)
+        )
         if has_target and not inside:
-            flags.append("the worst case leaves the window" if target.limit is None else
-                         "the worst case does not meet the limit")
+            flags.append(
+                "the worst case leaves the window" if target.limit is None else "the worst case does not meet the limit"
+            )
         r_pos = _position(r_combo, 0, study.r.models[0], r_info)
         c_pos = _position(c_combo, 0, study.c.models[0], c_info)
         yield_ = float(mc.yield_[0]) if mc.yield_ is not None else None
-        ci = (float(mc.yield_low[0]), float(mc.yield_high[0])) if mc.yield_low is not None and mc.yield_high is not None else None
+        ci = (
+            (float(mc.yield_low[0]), float(mc.yield_high[0]))
+            if mc.yield_low is not None and mc.yield_high is not None
+            else None
+        )
         design = Candidate(
-            rank=1, value=nominal, error=(nominal / target.value - 1.0) if has_target else 0.0,
+            rank=1,
+            value=nominal,
+            error=(nominal / target.value - 1.0) if has_target else 0.0,
             parts=len(r_parts) + len(c_parts),
-            spread=Spread(finite(worst_min), finite(worst_max), finite(mc.p_low[0]), finite(mc.p_median[0]),
-                          finite(mc.p_high[0]), finite(mc.sigma[0]), yield_, ci, int(mc.never[0])),
-            r=r_pos, c=c_pos, tau_s=nominal_tau, flags=tuple(flags))
+            spread=Spread(
+                finite(worst_min),
+                finite(worst_max),
+                finite(mc.p_low[0]),
+                finite(mc.p_median[0]),
+                finite(mc.p_high[0]),
+                finite(mc.sigma[0]),
+                yield_,
+                ci,
+                int(mc.never[0]),
+            ),
+            r=r_pos,
+            c=c_pos,
+            tau_s=nominal_tau,
+            flags=tuple(flags),
+        )
         assert mc.histogram is not None
         counts, edges = mc.histogram
         period_parts = None
         if target.kind == "period":
             charge, discharge = target.half_periods(nominal_tau, r_combo.value[0])
-            period_parts = {"charge_s": float(charge), "discharge_s": float(discharge),
-                            "duty_cycle": float(charge / (charge + discharge))}
+            period_parts = {
+                "charge_s": float(charge),
+                "discharge_s": float(discharge),
+                "duty_cycle": float(charge / (charge + discharge)),
+            }
         result = SpreadResult(
-            spec=spec, target=target, has_target=has_target, design=design, window=window_abs, nominal=nominal,
-            contributions=shares, histogram=(edges.tolist(), counts.tolist()),
-            temperatures_c=mc.temperatures_c.tolist(), reference_c=mc.reference_c,
+            spec=spec,
+            target=target,
+            has_target=has_target,
+            design=design,
+            window=window_abs,
+            nominal=nominal,
+            contributions=shares,
+            histogram=(edges.tolist(), counts.tolist()),
+            temperatures_c=mc.temperatures_c.tolist(),
+            reference_c=mc.reference_c,
             analysis={"settings": settings_dict(plan_like, spec), "stock": stock.path if stock else None},
-            warnings=warnings, settings=resolved_settings(spec, plan_like),
-            model_text={"r": _model_text(r_info, "r"), "c": _model_text(c_info, "c")}, period_parts=period_parts,
-            query_extra=list(query_extra or []))
+            warnings=warnings,
+            settings=resolved_settings(spec, plan_like),
+            model_text={"r": _model_text(r_info, "r"), "c": _model_text(c_info, "c")},
+            period_parts=period_parts,
+            query_extra=list(query_extra or []),
+        )
     result.warnings = [_spell(w, spec) for w in result.warnings]
     return result
 
@@ -430,65 +633,10 @@ def _design_combo(kind: str, arrangement: str, parts: list[float]) -> combos.Com
 
 # --- networks -----------------------------------------------------------------------
 
+
 def run_network(spec: NetworkSpec) -> NetworkResult:
     """Run a network spec (what :func:`network` and ``rcpick net`` do)."""
     from rcpick import netfind
 
     with spec.naming():
         return netfind.analyse(spec)
-
-
-# --- series --------------------------------------------------------------------------
-
-_CAPACITOR_MARKS = ("F", "p", "n", "u", "µ", "μ")
-_DEFAULT_RANGE = {"resistance": ("1k", "10k"), "capacitance": ("1n", "10n")}
-
-
-def series_values(series_name: str, *, low: Value = None, high: Value = None, around: Value = None,
-                  part: str | None = None) -> dict:
-    """The values of an IEC 60063 series in a range (both ends included), or the two around one value.
-
-    ``part`` is ``resistor`` or ``capacitor`` (guessed from the values' units when not given). Returns the
-    JSON document of ``rcpick values`` plus ``kind``.
-    """
-    from rcpick import series as series_mod
-    from rcpick import settings
-    from rcpick.errors import BadValue
-
-    try:
-        chosen = series_mod.get(series_name)
-    except RcpickError as error:
-        raise error.about("series") from None
-    kinds = {"resistor": "resistance", "capacitor": "capacitance"}
-    if part is not None and part not in kinds:
-        raise BadValue(f"unknown part {part!r}; accepted: resistor, capacitor", setting="part", value=part)
-    guessed = any(isinstance(t, str) and any(m in t for m in _CAPACITOR_MARKS) for t in (low, high, around))
-    kind = kinds[part] if part else ("capacitance" if guessed else "resistance")
-
-    def read(raw: Value, name: str) -> float:
-        try:
-            return settings.quantity(kind)(raw)
-        except RcpickError as error:
-            raise error.about(name) from None
-
-    document: dict[str, Any] = {"series": chosen.name, "tolerance": chosen.tolerance}
-    listed = None
-    if low is not None or high is not None or around is None:
-        lo = read(low if low is not None else _DEFAULT_RANGE[kind][0], "from")
-        hi = read(high, "to") if high is not None else (lo * 10 if low is not None else read(_DEFAULT_RANGE[kind][1], "to"))
-        unit = "Ω" if kind == "resistance" else "F"
-        if lo > hi:
-            raise BadValue(f"{format_si(lo, unit, trim=True)} is above {{to}} {format_si(hi, unit, trim=True)}",
-                           setting="from", value=low)
-        if hi / lo > 1e9:
-            raise BadValue("lists at most nine decades; narrow {from}…{to}", setting="to", value=high)
-        listed = [float(v) for v in chosen.values(lo, hi)]
-    if around is not None:
-        centre = read(around, "around")
-        below, above = chosen.neighbours(centre)
-        document.update(below=below, above=above, closest=series_mod.closest(below, above, centre), around=centre)
-        if listed is None:
-            listed = sorted({below, above})
-    document["values"] = listed
-    document["kind"] = kind
-    return document

@@ -37,7 +37,7 @@ class Assessed:
     yield_high: np.ndarray
     never: np.ndarray
     window: tuple[float, float]  # absolute, target's unit; an end is ±inf for a limit
-    analysed: int                # candidates given a Monte Carlo run
+    analysed: int  # candidates given a Monte Carlo run
     r_models: list[list[PartModel]]
     c_models: list[list[PartModel]]
     flags: list[list[str]]
@@ -57,8 +57,13 @@ def _position(combos: Combos, index: np.ndarray, parts: Parts) -> variation.Posi
 
 def study(shortlist: Shortlist, target: Target, r: Parts, c: Parts, cond: Conditions) -> variation.Study:
     """The spread study of every candidate in ``shortlist``."""
-    return variation.Study(_position(shortlist.r, shortlist.r_index, r), _position(shortlist.c, shortlist.c_index, c),
-                        cond.temp_c, target, cond.level_band)
+    return variation.Study(
+        _position(shortlist.r, shortlist.r_index, r),
+        _position(shortlist.c, shortlist.c_index, c),
+        cond.temp_c,
+        target,
+        cond.level_band,
+    )
 
 
 def useful(parts: Parts, combos: Combos | None = None) -> tuple[Combos, np.ndarray]:
@@ -66,8 +71,12 @@ def useful(parts: Parts, combos: Combos | None = None) -> tuple[Combos, np.ndarr
     contributor moves the value by more than the parts' tolerance (docs/model.md)."""
     found = parts.combos if combos is None else combos
     move = contributor_move(found)
-    tol = np.array([max(_half(parts.model_of(a)), _half(parts.model_of(b)) if not math.isnan(b) else 0.0)
-                    for a, b in zip(found.part_a, found.part_b)])
+    tol = np.array(
+        [
+            max(_half(parts.model_of(a)), _half(parts.model_of(b)) if not math.isnan(b) else 0.0)
+            for a, b in zip(found.part_a, found.part_b)
+        ]
+    )
     return subset(found, move > tol)
 
 
@@ -99,9 +108,20 @@ def practical_flags(shortlist: Shortlist, r: Parts, c: Parts, kinds: tuple[str, 
     return out
 
 
-def assess(shortlist: Shortlist, target: Target, r: Parts, c: Parts, cond: Conditions, rank: str, top: int, *,
-           families: tuple[str, str], min_yield: float = 0.0, stress=None,
-           progress: Callable[[int], None] | None = None) -> Assessed:
+def assess(
+    shortlist: Shortlist,
+    target: Target,
+    r: Parts,
+    c: Parts,
+    cond: Conditions,
+    rank: str,
+    top: int,
+    *,
+    families: tuple[str, str],
+    min_yield: float = 0.0,
+    stress=None,
+    progress: Callable[[int], None] | None = None,
+) -> Assessed:
     """Spread of the candidates, ranked, cut to ``top``.
 
     ``rank`` is ``error`` (the shortlist's own order, already by |error|; Monte Carlo for the listed
@@ -116,13 +136,15 @@ def assess(shortlist: Shortlist, target: Target, r: Parts, c: Parts, cond: Condi
         lo, hi = variation.worst_case(study(shortlist, target, r, c, cond))
         nominal = target.quantity(shortlist.r_ohm, shortlist.c_farad)
         abs_err = np.round(np.abs(target.error(nominal)), ranking.ERROR_DECIMALS)
-        keys = np.lexsort((shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts,
-                           np.round((hi - lo) / nominal, 9)))
+        keys = np.lexsort(
+            (shortlist.c_farad, shortlist.r_ohm, abs_err, shortlist.parts, np.round((hi - lo) / nominal, 9))
+        )
         shortlist = _take(shortlist, keys[:top])
     the_study = study(shortlist, target, r, c, cond)
     lo, hi = variation.worst_case(the_study)
-    mc = variation.monte_carlo(the_study, cond.samples, cond.seed, cond.dist, window, lot_share=cond.lot_share,
-                            progress=progress)
+    mc = variation.monte_carlo(
+        the_study, cond.samples, cond.seed, cond.dist, window, lot_share=cond.lot_share, progress=progress
+    )
     assert mc.yield_ is not None and mc.yield_low is not None and mc.yield_high is not None
     nominal = the_study.nominal
     flags = practical_flags(shortlist, r, c, families)
@@ -136,22 +158,49 @@ def assess(shortlist: Shortlist, target: Target, r: Parts, c: Parts, cond: Condi
     inside = (lo >= window[0] * (1 - 1e-12)) & (hi <= window[1] * (1 + 1e-12))
     for k in range(len(shortlist)):
         if not inside[k]:
-            flags[k].append("the worst case leaves the window" if target.limit is None else
-                            "the worst case does not meet the limit")
+            flags[k].append(
+                "the worst case leaves the window" if target.limit is None else "the worst case does not meet the limit"
+            )
     middle = math.sqrt(r.span[0] * r.span[1])
     scores = ranking.Scores(
-        mc.yield_, mc.yield_low, mc.yield_high, shortlist.parts, (hi - lo) / nominal, inside,
-        np.abs(target.error(nominal)), np.abs(np.log(shortlist.r_ohm / middle)), shortlist.r_ohm,
-        shortlist.c_farad, sound, stress_share, cost_per_board(the_study, r, c))
+        mc.yield_,
+        mc.yield_low,
+        mc.yield_high,
+        shortlist.parts,
+        (hi - lo) / nominal,
+        inside,
+        np.abs(target.error(nominal)),
+        np.abs(np.log(shortlist.r_ohm / middle)),
+        shortlist.r_ohm,
+        shortlist.c_farad,
+        sound,
+        stress_share,
+        cost_per_board(the_study, r, c),
+    )
     if rank == "error":
         order = list(range(len(shortlist)))
     else:
         order = ranking.order(scores, rank, limit=target.limit, min_yield=min_yield)[:top]
     pick = np.array(order, dtype=np.intp)
-    return Assessed(_take(shortlist, pick), lo[pick], hi[pick], mc.p_low[pick], mc.p_median[pick],
-                    mc.p_high[pick], mc.sigma[pick], mc.yield_[pick], mc.yield_low[pick], mc.yield_high[pick],
-                    mc.never[pick], window, len(the_study.r), [the_study.r.models[i] for i in pick],
-                    [the_study.c.models[i] for i in pick], [flags[i] for i in pick], cond.samples)
+    return Assessed(
+        _take(shortlist, pick),
+        lo[pick],
+        hi[pick],
+        mc.p_low[pick],
+        mc.p_median[pick],
+        mc.p_high[pick],
+        mc.sigma[pick],
+        mc.yield_[pick],
+        mc.yield_low[pick],
+        mc.yield_high[pick],
+        mc.never[pick],
+        window,
+        len(the_study.r),
+        [the_study.r.models[i] for i in pick],
+        [the_study.c.models[i] for i in pick],
+        [flags[i] for i in pick],
+        cond.samples,
+    )
 
 
 def cost_per_board(the_study: variation.Study, r: Parts, c: Parts) -> np.ndarray:

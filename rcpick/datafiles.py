@@ -18,7 +18,9 @@ def data_dir() -> Path:
     for candidate in (_PACKAGE / "data", _PACKAGE.parent / "data"):
         if (candidate / "eseries.toml").is_file():
             return candidate
-    raise FileNotFoundError(f"rcpick's data folder is missing (looked in {_PACKAGE / 'data'} and {_PACKAGE.parent / 'data'})")
+    raise FileNotFoundError(
+        f"rcpick's data folder is missing (looked in {_PACKAGE / 'data'} and {_PACKAGE.parent / 'data'})"
+    )
 
 
 @functools.cache

@@ -70,7 +70,7 @@ class RcpickError(Exception):
     def __str__(self) -> str:
         return self.render()
 
-    def about(self, setting: str) -> "RcpickError":
+    def about(self, setting: str) -> RcpickError:
         """Return this error naming ``setting``, if it named none."""
         if self.setting is None:
             self.setting = setting

@@ -18,8 +18,19 @@ from rcpick.errors import BadValue, ClashingOptions
 from rcpick.notation import format_rkm
 
 #: Excel number formats by the unit named in a column header.
-_FORMATS = {"(Ω)": "##0.###E+0", "(F)": "##0.###E+0", "(Ω or F)": "##0.###E+0", "(s)": "##0.000E+0", "(Hz)": "##0.000E+0", "(V)": "0.##",
-            "(fraction)": "0.000%", "(ppm/°C)": "0", "(%)": "0.0#", "(each)": "0.0000", "(total)": "0.00"}
+_FORMATS = {
+    "(Ω)": "##0.###E+0",
+    "(F)": "##0.###E+0",
+    "(Ω or F)": "##0.###E+0",
+    "(s)": "##0.000E+0",
+    "(Hz)": "##0.000E+0",
+    "(V)": "0.##",
+    "(fraction)": "0.000%",
+    "(ppm/°C)": "0",
+    "(%)": "0.0#",
+    "(each)": "0.0000",
+    "(total)": "0.00",
+}
 
 
 def _part_columns(sym: str, detail: dict | None, kind: str) -> dict:
@@ -27,9 +38,11 @@ def _part_columns(sym: str, detail: dict | None, kind: str) -> dict:
     unit = "Ω" if kind == "resistance" else "F"
     d = detail or {}
     tol = d.get("tolerance")
-    cols = {f"{sym} ({unit})": d.get("value"),
-            f"{sym} tol − (%)": tol[0] * 100 if tol else None,
-            f"{sym} tol + (%)": tol[1] * 100 if tol else None}
+    cols = {
+        f"{sym} ({unit})": d.get("value"),
+        f"{sym} tol − (%)": tol[0] * 100 if tol else None,
+        f"{sym} tol + (%)": tol[1] * 100 if tol else None,
+    }
     if kind == "resistance":
         tcr = d.get("tcr_ppm_per_c")
         cols[f"{sym} TCR min (ppm/°C)"] = tcr[0] if tcr else None
@@ -54,7 +67,10 @@ def shortlist_rows(document: dict) -> list[dict]:
         for pos, sym in (("r", "R"), ("c", "C")):
             if pos in cand:
                 row[f"{sym} wiring"] = cand[pos]["text"]
-        for pos, sym, unit_sym, key, kind in (("r", "R", "Ω", "ohm", "resistance"), ("c", "C", "F", "farad", "capacitance")):
+        for pos, sym, unit_sym, key, kind in (
+            ("r", "R", "Ω", "ohm", "resistance"),
+            ("c", "C", "F", "farad", "capacitance"),
+        ):
             if pos not in cand:
                 continue
             details = _details(cand, pos, key)
@@ -66,8 +82,13 @@ def shortlist_rows(document: dict) -> list[dict]:
         row[f"nominal ({unit})"] = cand["value"]
         row["error (fraction)"] = cand["error"]
         sp = cand.get("spread", {})
-        for name, label in (("worst_min", "worst-case min"), ("worst_max", "worst-case max"), ("p_low", "MC 0.135 %"),
-                            ("p_median", "MC median"), ("p_high", "MC 99.865 %")):
+        for name, label in (
+            ("worst_min", "worst-case min"),
+            ("worst_max", "worst-case max"),
+            ("p_low", "MC 0.135 %"),
+            ("p_median", "MC median"),
+            ("p_high", "MC 99.865 %"),
+        ):
             row[f"{label} ({unit})"] = sp.get(name)
         row["yield (fraction)"] = sp.get("yield")
         ci = sp.get("yield_ci") or [None, None]
@@ -98,11 +119,19 @@ def order_rows(document: dict, picks: list[int], boards: int, spares: float) -> 
                 ident = (kind, d["value"], tol, tcr, d.get("dielectric"), d.get("part_number") or "")
                 line = lines.get(ident)
                 if line is None:
-                    line = {"kind": "R" if kind == "resistance" else "C", "value": format_rkm(d["value"], kind),
-                            "value (Ω or F)": d["value"]}
+                    line = {
+                        "kind": "R" if kind == "resistance" else "C",
+                        "value": format_rkm(d["value"], kind),
+                        "value (Ω or F)": d["value"],
+                    }
                     part = _part_columns("", d, kind)
-                    line.update({name.strip(): v for name, v in part.items() if not name.startswith(" (")
-                                 and "part number" not in name})
+                    line.update(
+                        {
+                            name.strip(): v
+                            for name, v in part.items()
+                            if not name.startswith(" (") and "part number" not in name
+                        }
+                    )
                     line.update({"qty per board": 0, "used in ranks": [], "_detail": d})
                     lines[ident] = line
                 line["qty per board"] += 1
@@ -115,21 +144,29 @@ def order_rows(document: dict, picks: list[int], boards: int, spares: float) -> 
         stock = detail.get("stock")
         total = math.ceil(line["qty per board"] * boards * (1 + spares) - 1e-9)
         row = {name: line.get(name) for name in ORDER_PART_COLUMNS}
-        row.update({"used in ranks": ", ".join(str(r) for r in line["used in ranks"]), "boards": boards,
-                    "spares (%)": spares * 100, "total qty": total})
+        row.update(
+            {
+                "used in ranks": ", ".join(str(r) for r in line["used in ranks"]),
+                "boards": boards,
+                "spares (%)": spares * 100,
+                "total qty": total,
+            }
+        )
         if stocked:
             price = stock.get("unit_price") if stock else None
             on_hand = stock.get("on_hand") if stock else None
-            row.update({
-                "part number": detail.get("part_number"),
-                "stock line": stock.get("line") if stock else None,
-                "package": stock.get("package") if stock else None,
-                "voltage (V)": stock.get("voltage_v") if stock else None,
-                "unit price (each)": price,
-                "extended price (total)": price * total if price is not None else None,
-                "on hand": on_hand,
-                "shortfall": max(0, total - on_hand) if on_hand is not None else None,
-            })
+            row.update(
+                {
+                    "part number": detail.get("part_number"),
+                    "stock line": stock.get("line") if stock else None,
+                    "package": stock.get("package") if stock else None,
+                    "voltage (V)": stock.get("voltage_v") if stock else None,
+                    "unit price (each)": price,
+                    "extended price (total)": price * total if price is not None else None,
+                    "on hand": on_hand,
+                    "shortfall": max(0, total - on_hand) if on_hand is not None else None,
+                }
+            )
         rows.append(row)
     return rows
 
@@ -138,20 +175,31 @@ def check_ranks(picks: list[int], count: int) -> list[int]:
     """The ranks of the order sheet: each must be one of the ``count`` listed; duplicates dropped."""
     bad = [r for r in picks if not 1 <= r <= count]
     if not picks or bad:
-        raise BadValue(f"rank {bad[0] if bad else picks} is not listed; {count} candidate(s) are (1…{count})",
-                       setting="order")
+        raise BadValue(
+            f"rank {bad[0] if bad else picks} is not listed; {count} candidate(s) are (1…{count})", setting="order"
+        )
     return list(dict.fromkeys(picks))
 
 
-
-ORDER_PART_COLUMNS = ("kind", "value", "value (Ω or F)", "tol − (%)", "tol + (%)", "TCR min (ppm/°C)",
-                      "TCR max (ppm/°C)", "dielectric", "qty per board")
+ORDER_PART_COLUMNS = (
+    "kind",
+    "value",
+    "value (Ω or F)",
+    "tol − (%)",
+    "tol + (%)",
+    "TCR min (ppm/°C)",
+    "TCR max (ppm/°C)",
+    "dielectric",
+    "qty per board",
+)
 
 
 def query_rows(provenance: list[tuple[str, object, str]]) -> list[dict]:
     """The ``query`` sheet: every setting with its value and where it came from."""
-    return [{"setting": name, "value": "" if value is None else str(value), "source": source}
-            for name, value, source in provenance]
+    return [
+        {"setting": name, "value": "" if value is None else str(value), "source": source}
+        for name, value, source in provenance
+    ]
 
 
 def _umask() -> int:
@@ -191,7 +239,7 @@ def _remove_stale(folder: Path) -> None:
     import time
 
     for leftover in folder.glob(f"{TEMP_PREFIX}*{TEMP_MARK}*"):
-        pid_text = leftover.name[len(TEMP_PREFIX):].split("-", 1)[0]
+        pid_text = leftover.name[len(TEMP_PREFIX) :].split("-", 1)[0]
         try:
             old = time.time() - leftover.stat().st_mtime > STALE_AFTER
             alive = pid_text.isdigit() and _running(int(pid_text))
@@ -223,8 +271,9 @@ def atomic_write(path: Path, force: bool, write: Callable[[Path], None], option:
     parent = path.parent if str(path.parent) else Path(".")
     _remove_stale(parent)
     try:
-        handle, temp_name = tempfile.mkstemp(prefix=f"{TEMP_PREFIX}{os.getpid()}-", suffix=f"{TEMP_MARK}{path.suffix}",
-                                             dir=parent)
+        handle, temp_name = tempfile.mkstemp(
+            prefix=f"{TEMP_PREFIX}{os.getpid()}-", suffix=f"{TEMP_MARK}{path.suffix}", dir=parent
+        )
     except OSError as error:
         raise BadValue(f"cannot write {path}: {error.strerror}", setting=option, value=str(path)) from None
     os.close(handle)

@@ -66,14 +66,16 @@ def linear(low: float, high: float, rated_c=None, text: str | None = None) -> Dr
     return Drift((low, high), (low, high), True, rated_c, text)
 
 
-def band(cold_change: tuple[float, float], hot_change: tuple[float, float], rated_c: tuple[float, float], text: str) -> Drift:
+def band(
+    cold_change: tuple[float, float], hot_change: tuple[float, float], rated_c: tuple[float, float], text: str
+) -> Drift:
     """A change within ``cold_change`` at the cold rated extreme and ``hot_change`` at the hot one (fractions)."""
     t_lo, t_hi = rated_c
     if not t_lo < ROOM_C < t_hi:
         raise ValueError(f"rated range {rated_c} must contain 25 °C")
-    cold = sorted((cold_change[0] / (t_lo - ROOM_C), cold_change[1] / (t_lo - ROOM_C)))
-    hot = sorted((hot_change[0] / (t_hi - ROOM_C), hot_change[1] / (t_hi - ROOM_C)))
-    return Drift(tuple(cold), tuple(hot), False, rated_c, text)
+    c1, c2 = sorted((cold_change[0] / (t_lo - ROOM_C), cold_change[1] / (t_lo - ROOM_C)))
+    h1, h2 = sorted((hot_change[0] / (t_hi - ROOM_C), hot_change[1] / (t_hi - ROOM_C)))
+    return Drift((c1, c2), (h1, h2), False, rated_c, text)
 
 
 @dataclass(frozen=True)
@@ -106,7 +108,7 @@ class PartModel:
     name: str = ""
     part_number: str = ""
 
-    def only(self, source: str) -> "PartModel":
+    def only(self, source: str) -> PartModel:
         """This model with every source but one (``tolerance``, ``drift``, ``aging``, ``loss``) set to nothing."""
         return PartModel(
             self.tolerance if source == "tolerance" else (0.0, 0.0),
@@ -120,6 +122,7 @@ class PartModel:
 
 
 # --- resistors -------------------------------------------------------------
+
 
 def technology_names() -> list[str]:
     return list(load_toml("resistors.toml"))
@@ -145,10 +148,15 @@ def resistor_technology(name: str) -> tuple[str, Drift, float]:
 def technology_ratings(name: str) -> dict:
     """A technology's usual ratings per part: ``power_w``, ``voltage_v`` and where they come from."""
     entry = load_toml("resistors.toml")[technology_key(name)]
-    return {"power_w": entry.get("power_w"), "voltage_v": entry.get("voltage_v"), "source": entry.get("rating_source", "")}
+    return {
+        "power_w": entry.get("power_w"),
+        "voltage_v": entry.get("voltage_v"),
+        "source": entry.get("rating_source", ""),
+    }
 
 
 # --- capacitors ------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class Dielectric:
@@ -186,10 +194,17 @@ def _class2(code: str, table: dict) -> Dielectric:
     t_lo = table["low_c"][code[0]]
     t_hi = table["high_c"][code[1]]
     change = tuple(p / 100 for p in table["change_pct"][code[2]])
-    text = (f"±{change[1] * 100:g} %" if math.isclose(-change[0], change[1])
-            else f"{change[1] * 100:+g}/{change[0] * 100:+g} %") + f" over {t_lo:+g}…{t_hi:+g} °C"
+    text = (
+        f"±{change[1] * 100:g} %"
+        if math.isclose(-change[0], change[1])
+        else f"{change[1] * 100:+g}/{change[0] * 100:+g} %"
+    ) + f" over {t_lo:+g}…{t_hi:+g} °C"
     tol_pct = table["tolerance_pct_by_change"].get(code[2])
-    tolerance = (tol_pct[0] / 100, tol_pct[1] / 100) if tol_pct else (-table["tolerance_pct"] / 100, table["tolerance_pct"] / 100)
+    tolerance = (
+        (tol_pct[0] / 100, tol_pct[1] / 100)
+        if tol_pct
+        else (-table["tolerance_pct"] / 100, table["tolerance_pct"] / 100)
+    )
     aging = tuple(k / 100 for k in table["aging_pct_per_decade"][code[2]])
     poor = None
     if code[2] in ("U", "V"):
@@ -201,10 +216,12 @@ def _other(key: str, entry: dict) -> Dielectric:
     cold = tuple(p / 100 for p in entry["cold_change_pct"])
     hot = tuple(p / 100 for p in entry["hot_change_pct"])
     rated = tuple(entry["rated_c"])
-    text = f"cold {cold[0] * 100:+g}…{cold[1] * 100:+g} %, hot {hot[0] * 100:+g}…{hot[1] * 100:+g} % over {rated[0]:+g}…{rated[1]:+g} °C"
+    text = (f"cold {cold[0] * 100:+g}…{cold[1] * 100:+g} %, hot {hot[0] * 100:+g}…{hot[1] * 100:+g} % "
+            f"over {rated[0]:+g}…{rated[1]:+g} °C")
     tol = entry["tolerance_pct"] / 100
-    return Dielectric(key, entry["label"], band(cold, hot, rated, text), (-tol, tol), (0.0, 0.0),
-                      entry.get("poor_for_timing"))
+    return Dielectric(
+        key, entry["label"], band(cold, hot, rated, text), (-tol, tol), (0.0, 0.0), entry.get("poor_for_timing")
+    )
 
 
 #: Family words that name several dielectrics: the error lists the codes to choose from.

@@ -21,7 +21,7 @@ import numpy as np
 from rcpick import assess, models, netsearch, nodal, ranking, search, variation
 from rcpick import stock as stocks
 from rcpick.combos import ARRANGEMENTS, SERIES, SINGLE, parallel_value, series_value, subset
-from rcpick.errors import BadValue, ClashingOptions, NotReached, Unreachable
+from rcpick.errors import BadValue, ClashingOptions, Unreachable
 from rcpick.models import ROOM_C, PartModel
 from rcpick.netlist import Netlist, read
 from rcpick.notation import format_si
@@ -39,6 +39,7 @@ RANGE_POINTS = 400
 
 # --- rcpick net ---------------------------------------------------------------------
 
+
 def node_range(resp: nodal.Response, node: str, horizon: float) -> tuple[float, float]:
     """Lowest and highest voltage of ``node`` from t = 0 to ``horizon`` and at the end (V)."""
     t = np.concatenate([[0.0], np.geomspace(horizon * 1e-7, horizon, RANGE_POINTS), [np.inf]])
@@ -51,8 +52,11 @@ def analyse(spec: NetworkSpec) -> NetworkResult:
     net = read(spec.file)
     taus = nodal.time_constants(net)[0]
     doc: dict[str, Any] = {
-        "netlist": net.path, "capacitors": len(net.of("C")), "order": int(len(taus)),
-        "time_constants_s": [float(t) for t in taus], "warnings": list(net.warnings),
+        "netlist": net.path,
+        "capacitors": len(net.of("C")),
+        "order": int(len(taus)),
+        "time_constants_s": [float(t) for t in taus],
+        "warnings": list(net.warnings),
     }
     first = nodal.first_order(net) if len(taus) == 1 else None
     if first is not None:
@@ -66,19 +70,34 @@ def analyse(spec: NetworkSpec) -> NetworkResult:
         v0, v_final = float(resp.initial(node)[0]), float(resp.final(node)[0])
         horizon = 30 * (float(taus[0]) if len(taus) else 1.0)
         low, high = node_range(resp, node, horizon)
-        step: dict[str, Any] = {"node": node, "v0": v0, "v_final": v_final, "v_min": low, "v_max": high,
-                                "threshold_v": None, "t_threshold_s": None}
+        step: dict[str, Any] = {
+            "node": node,
+            "v0": v0,
+            "v_final": v_final,
+            "v_min": low,
+            "v_max": high,
+            "threshold_v": None,
+            "t_threshold_s": None,
+        }
         if spec.threshold is not None:
-            level = spec.threshold.value if spec.threshold.volts else float(
-                nodal.fractional_level(spec.threshold.value, v0, v_final))
+            level = (
+                spec.threshold.value
+                if spec.threshold.volts
+                else float(nodal.fractional_level(spec.threshold.value, v0, v_final))
+            )
             if not math.isfinite(level):
-                raise BadValue(f"node {node} starts and ends at {format_si(v0, 'V', 4)}: a fraction of its swing "
-                               f"means nothing; give the threshold in volts", setting="threshold")
+                raise BadValue(
+                    f"node {node} starts and ends at {format_si(v0, 'V', 4)}: a fraction of its swing "
+                    f"means nothing; give the threshold in volts",
+                    setting="threshold",
+                )
             t = float(nodal.crossing_time(resp, node, np.array([level]), np.array([horizon]))[0])
             step["threshold_v"] = level
             if math.isnan(t):
-                unreached = (f"node {node} never reaches {format_si(level, 'V', 4)}: it goes from "
-                             f"{format_si(v0, 'V', 4)} to {format_si(v_final, 'V', 4)}")
+                unreached = (
+                    f"node {node} never reaches {format_si(level, 'V', 4)}: it goes from "
+                    f"{format_si(v0, 'V', 4)} to {format_si(v_final, 'V', 4)}"
+                )
                 if low < min(v0, v_final) - 1e-9 or high > max(v0, v_final) + 1e-9:
                     unreached += f", passing between {format_si(low, 'V', 4)} and {format_si(high, 'V', 4)}"
                 doc["warnings"].append(unreached)
@@ -89,6 +108,7 @@ def analyse(spec: NetworkSpec) -> NetworkResult:
 
 
 # --- parts of a network design --------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class NetPart:
@@ -128,7 +148,7 @@ class NetDesign:
         """Element values from each part's values (``factors`` in :meth:`flat` order, absolute values)."""
         out, k = {}, 0
         for name, ps in self.parts.items():
-            vals = factors[k:k + len(ps)]
+            vals = factors[k : k + len(ps)]
             k += len(ps)
             if len(vals) == 1:
                 out[name] = vals[0]
@@ -152,11 +172,12 @@ def element_model(element, value: float, base_r: PartModel, base_c: PartModel, m
     if "dielectric" in p:
         diel = models.dielectric(p["dielectric"])
         aging = models.aging_change(diel.aging_per_decade, mdl.aging_hours) if mdl.aging_hours else (0.0, 0.0)
-        drift = models.linear(*p["tc"], rated_c=diel.drift.rated_c) if "tc" in p else diel.drift
+        drift = models.linear(p["tc"][0], p["tc"][1], rated_c=diel.drift.rated_c) if "tc" in p else diel.drift
         return PartModel(p.get("tol", diel.tolerance), drift, aging, mdl.loss, label=element.name, name=diel.code)
     drift = models.linear(*p["tc"]) if "tc" in p else base_c.drift
-    return PartModel(p.get("tol", base_c.tolerance), drift, base_c.aging, base_c.loss, label=element.name,
-                     name=base_c.name)
+    return PartModel(
+        p.get("tol", base_c.tolerance), drift, base_c.aging, base_c.loss, label=element.name, name=base_c.name
+    )
 
 
 def design_of(net: Netlist, chosen: dict[str, tuple[Any, int, Parts]], mdl) -> NetDesign:
@@ -175,18 +196,28 @@ def design_of(net: Netlist, chosen: dict[str, tuple[Any, int, Parts]], mdl) -> N
             slot = e.letter
             values = combos_.parts_of(i)
             own = element_model(e, values[0], mdl.r, mdl.c, mdl)
-            parts[e.name] = [NetPart(e.name, kind, v,
-                                     info.by_value.get(float(v), own) if info.by_value else own,
-                                     f"{slot}{k + 1}", info.lines.get(float(v))) for k, v in enumerate(values)]
+            parts[e.name] = [
+                NetPart(
+                    e.name,
+                    kind,
+                    v,
+                    info.by_value.get(float(v), own) if info.by_value else own,
+                    f"{slot}{k + 1}",
+                    info.lines.get(float(v)),
+                )
+                for k, v in enumerate(values)
+            ]
             wiring[e.name] = int(combos_.wiring[i])
         else:
-            parts[e.name] = [NetPart(e.name, kind, e.value, element_model(e, e.value, mdl.r, mdl.c, mdl),
-                                     f"net:{e.name}")]
+            parts[e.name] = [
+                NetPart(e.name, kind, e.value, element_model(e, e.value, mdl.r, mdl.c, mdl), f"net:{e.name}")
+            ]
             wiring[e.name] = SINGLE
     return NetDesign(parts, wiring)
 
 
 # --- spread of a network design ---------------------------------------------------------
+
 
 def _level_scale(quantity: netsearch.Quantity, deviation):
     if deviation is None or quantity.kind != "delay":
@@ -218,14 +249,15 @@ def worst_case(net: Netlist, design: NetDesign, quantity: netsearch.Quantity, co
         scale = None if level == 0.0 else np.full(n, 1.0 + level)
         return quantity.evaluate(net, values, n, scale).reshape(len(corner_rows), len(x))
 
-    lows, highs = [], []
+    lows: list[float] = []
+    highs: list[float] = []
     for a, b in variation._sides(cond.temp_c):
         grid = np.linspace(a, b, 9 if b > a else 1)
         for level in levels:
             table = evaluate(grid, corners, level)
             for upper in (False, True):
                 pick = int(np.argmax(table.max(axis=1)) if upper else np.argmin(table.min(axis=1)))
-                row = corners[pick:pick + 1]
+                row = corners[pick : pick + 1]
 
                 def func(x, up, row=row, level=level):
                     return evaluate(x[0], row, level)[0][None, :]
@@ -235,8 +267,14 @@ def worst_case(net: Netlist, design: NetDesign, quantity: netsearch.Quantity, co
     return min(lows), max(highs)
 
 
-def monte_carlo(net: Netlist, designs: list[NetDesign], quantity: netsearch.Quantity, cond: Conditions,
-                window: tuple[float, float], progress=None) -> dict[str, np.ndarray]:
+def monte_carlo(
+    net: Netlist,
+    designs: list[NetDesign],
+    quantity: netsearch.Quantity,
+    cond: Conditions,
+    window: tuple[float, float],
+    progress=None,
+) -> dict[str, np.ndarray]:
     """Monte Carlo of network designs with the shared law and draws; per design arrays as variation.unit_summary."""
     sampler = Sampler(cond.seed, cond.dist, cond.lot_share)
     temps = variation.temperature_grid(cond.temp_c)
@@ -252,8 +290,9 @@ def monte_carlo(net: Netlist, designs: list[NetDesign], quantity: netsearch.Quan
         start = 0
         for index, n in sampler.chunks(samples):
             chunk = sampler.chunk(index, n)
-            factors = [p.value * variation.relative_factor(p.model, chunk, p.stream, lots[i], x)
-                       for i, p in enumerate(flat)]
+            factors = [
+                p.value * variation.relative_factor(p.model, chunk, p.stream, lots[i], x) for i, p in enumerate(flat)
+            ]
             values = {name: v.ravel() for name, v in design.element_values(factors).items()}
             scale = None
             if band != (0.0, 0.0) and quantity.kind == "delay":
@@ -262,9 +301,9 @@ def monte_carlo(net: Netlist, designs: list[NetDesign], quantity: netsearch.Quan
                 scale = np.broadcast_to(1.0 + dev, (len(x), n)).ravel()
             q = quantity.evaluate(net, values, len(x) * n, scale).reshape(len(x), n)
             q = np.where(np.isnan(q), np.inf, q)
-            lows[0, start:start + n] = q.min(axis=0)
-            highs[0, start:start + n] = q.max(axis=0)
-            refs[0, start:start + n] = q[ref]
+            lows[0, start : start + n] = q.min(axis=0)
+            highs[0, start : start + n] = q.max(axis=0)
+            refs[0, start : start + n] = q[ref]
             start += n
             if progress is not None:
                 progress(n * len(x))
@@ -278,21 +317,28 @@ def monte_carlo(net: Netlist, designs: list[NetDesign], quantity: netsearch.Quan
 
 # --- rcpick find --net --------------------------------------------------------------
 
+
 def _quantity(spec: FindSpec, net: Netlist, target) -> netsearch.Quantity:
     kind = target.kind
     if spec.supply is not None or spec.falling or spec.from_level is not None or spec.leak is not None:
-        raise ClashingOptions("{supply}, {falling}, {from_level} and {leak} do not apply with {net}: the netlist's "
-                              "sources and capacitor start voltages set the step", setting="net")
+        raise ClashingOptions(
+            "{supply}, {falling}, {from_level} and {leak} do not apply with {net}: the netlist's "
+            "sources and capacitor start voltages set the step",
+            setting="net",
+        )
     if kind == "period":
         raise ClashingOptions("{period} is not searched inside a network; give a lone R and C", setting="period")
     if kind == "tau":
         if spec.node is not None:
-            raise ClashingOptions("{node} applies to {cutoff} and {delay} with {net}; {tau} is the network's "
-                                  "dominant time constant", setting="node")
+            raise ClashingOptions(
+                "{node} applies to {cutoff} and {delay} with {net}; {tau} is the network's dominant time constant",
+                setting="node",
+            )
         return netsearch.Quantity("tau")
     if spec.node is None:
-        raise ClashingOptions(f"{{{kind}}} with {{net}} needs {{node}} (the node whose response is timed)",
-                              setting=kind)
+        raise ClashingOptions(
+            f"{{{kind}}} with {{net}} needs {{node}} (the node whose response is timed)", setting=kind
+        )
     if spec.node not in net.nodes:
         raise BadValue(f"no node {spec.node!r} in {net.path}; nodes: {', '.join(net.nodes)}", setting="node")
     if kind == "cutoff":
@@ -314,8 +360,9 @@ def _varied(spec: FindSpec, net: Netlist) -> list[str]:
         found.append(element)
     letters = [e.letter for e in found]
     if not 1 <= len(found) <= 2 or len(set(letters)) != len(letters):
-        raise BadValue(f"give one or two elements, at most one R and one C, got {','.join(spec.vary)!r}",
-                       setting="vary")
+        raise BadValue(
+            f"give one or two elements, at most one R and one C, got {','.join(spec.vary)!r}", setting="vary"
+        )
     return [e.name for e in found]
 
 
@@ -350,8 +397,12 @@ def pooled(net: Netlist, varied: list[netsearch.Varied], quantity, value: float,
         return netsearch.search(net, varied, quantity, value, size)
     chosen = search.share_cap(groups, size)
     index = np.concatenate([g[0] for g in chosen.values()])
-    return netsearch.NetShortlist(tuple(varied), index, np.concatenate([g[1] for g in chosen.values()]),
-                                  np.concatenate([g[2] for g in chosen.values()]))
+    return netsearch.NetShortlist(
+        tuple(varied),
+        index,
+        np.concatenate([g[1] for g in chosen.values()]),
+        np.concatenate([g[2] for g in chosen.values()]),
+    )
 
 
 def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> FindResult:
@@ -380,8 +431,10 @@ def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> Fi
         window = assess.window_of(target, cond.window)
         designs = []
         for i in rows:
-            chosen = {v.name: (v.combos, int(shortlist.index[i, k]), infos[v.name[0].upper()])
-                      for k, v in enumerate(shortlist.varied)}
+            chosen = {
+                v.name: (v.combos, int(shortlist.index[i, k]), infos[v.name[0].upper()])
+                for k, v in enumerate(shortlist.varied)
+            }
             designs.append(design_of(net, chosen, mdl))
         mc = monte_carlo(net, designs, quantity, cond, window, progress)
         worst = [worst_case(net, d, quantity, cond) for d in designs]
@@ -398,24 +451,44 @@ def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> Fi
                 low, high = info.practical
                 odd = [p for p in d.parts[name] if not low * (1 - 1e-9) <= p.value <= high * (1 + 1e-9)]
                 if odd:
-                    f.append(f"{', '.join(format_si(p.value, 'Ω' if p.kind == 'resistance' else 'F', 3, trim=True) for p in odd)} "
-                             f"is outside the practical range of its part family")
+                    f.append(
+                        f"{', '.join(_value_text(p) for p in odd)} "
+                        f"is outside the practical range of its part family"
+                    )
             flags.append(f)
         inside = (w_lo >= window[0] * (1 - 1e-12)) & (w_hi <= window[1] * (1 + 1e-12))
         for k in range(len(rows)):
             if not inside[k]:
-                flags[k].append("the worst case leaves the window" if target.limit is None else
-                                "the worst case does not meet the limit")
+                flags[k].append(
+                    "the worst case leaves the window"
+                    if target.limit is None
+                    else "the worst case does not meet the limit"
+                )
         r_values = np.array([_varied_value(d, names, "R") for d in designs])
         c_values = np.array([_varied_value(d, names, "C") for d in designs])
         middle = math.sqrt(infos["R"].span[0] * infos["R"].span[1])
         with np.errstate(divide="ignore", invalid="ignore"):
             off = np.where(r_values > 0, np.abs(np.log(np.where(r_values > 0, r_values, 1.0) / middle)), 0.0)
-        scores = ranking.Scores(mc["yield"], mc["yield_low"], mc["yield_high"], parts, (w_hi - w_lo) / value, inside,
-                                np.abs(error), off, r_values, c_values, np.array([not f for f in flags], dtype=bool),
-                                np.full(len(rows), np.nan), np.array([_cost(d, names) for d in designs]))
-        order = list(range(len(rows))) if spec.rank == "error" else \
-            ranking.order(scores, spec.rank, limit=target.limit, min_yield=spec.min_yield)[:spec.top]
+        scores = ranking.Scores(
+            mc["yield"],
+            mc["yield_low"],
+            mc["yield_high"],
+            parts,
+            (w_hi - w_lo) / value,
+            inside,
+            np.abs(error),
+            off,
+            r_values,
+            c_values,
+            np.array([not f for f in flags], dtype=bool),
+            np.full(len(rows), np.nan),
+            np.array([_cost(d, names) for d in designs]),
+        )
+        order = (
+            list(range(len(rows)))
+            if spec.rank == "error"
+            else ranking.order(scores, spec.rank, limit=target.limit, min_yield=spec.min_yield)[: spec.top]
+        )
         candidates = []
         for rank_no, k in enumerate(order, start=1):
             d = designs[k]
@@ -424,43 +497,86 @@ def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> Fi
                 ps = d.parts[name]
                 kind = ps[0].kind
                 eff = float(_element_value([p.value for p in ps], d.wiring[name], kind))
-                elements[name] = Position(kind, eff, ARRANGEMENTS[d.wiring[name]],
-                                          tuple(part_of(kind, p.value, p.model, p.line) for p in ps))
+                elements[name] = Position(
+                    kind, eff, ARRANGEMENTS[d.wiring[name]], tuple(part_of(kind, p.value, p.model, p.line) for p in ps)
+                )
             r_pos = next((p for n, p in elements.items() if n[0].upper() == "R"), None)
             c_pos = next((p for n, p in elements.items() if n[0].upper() == "C"), None)
-            sp = Spread(finite(w_lo[k]), finite(w_hi[k]), finite(mc["p_low"][k]), finite(mc["p_median"][k]),
-                        finite(mc["p_high"][k]), finite(mc["sigma"][k]), float(mc["yield"][k]),
-                        (float(mc["yield_low"][k]), float(mc["yield_high"][k])), int(mc["never"][k]))
-            candidates.append(Candidate(rank=rank_no, value=float(value[k]), error=float(error[k]), parts=int(parts[k]),
-                                        spread=sp, r=r_pos, c=c_pos,
-                                        tau_s=float(value[k]) if quantity.kind == "tau" else None,
-                                        elements=elements, cost_per_board=finite(_cost(d, names)),
-                                        flags=tuple(flags[k])))
+            sp = Spread(
+                finite(w_lo[k]),
+                finite(w_hi[k]),
+                finite(mc["p_low"][k]),
+                finite(mc["p_median"][k]),
+                finite(mc["p_high"][k]),
+                finite(mc["sigma"][k]),
+                float(mc["yield"][k]),
+                (float(mc["yield_low"][k]), float(mc["yield_high"][k])),
+                int(mc["never"][k]),
+            )
+            candidates.append(
+                Candidate(
+                    rank=rank_no,
+                    value=float(value[k]),
+                    error=float(error[k]),
+                    parts=int(parts[k]),
+                    spread=sp,
+                    r=r_pos,
+                    c=c_pos,
+                    tau_s=float(value[k]) if quantity.kind == "tau" else None,
+                    elements=elements,
+                    cost_per_board=finite(_cost(d, names)),
+                    flags=tuple(flags[k]),
+                )
+            )
         plan = Plan(target, infos["R"], infos["C"], cond, mdl, list(mdl.warnings), stock)
         settings = settings_dict(plan, spec)
         settings["r_model"] = f"each R's own netlist annotations, else: {settings['r_model']}"
         settings["c_model"] = f"each C's own netlist annotations, else: {settings['c_model']}"
-        net_doc = {"netlist": net.path, "vary": names, "node": spec.node, "quantity": quantity.kind,
-                   "level": quantity.level, "level_is_volts": quantity.level_is_volts}
+        net_doc = {
+            "netlist": net.path,
+            "vary": names,
+            "node": spec.node,
+            "quantity": quantity.kind,
+            "level": quantity.level,
+            "level_is_volts": quantity.level_is_volts,
+        }
         notes = []
         if len(candidates) < spec.top and spec.rank != "error":
-            notes.append(f"{len(candidates)} listed: the pool analysed holds the {len(rows)} designs nearest the "
-                         f"target (an equal share per mix of single parts and pairs); use --top with --rank error "
-                         f"for more nominal candidates.")
+            notes.append(
+                f"{len(candidates)} listed: the pool analysed holds the {len(rows)} designs nearest the "
+                f"target (an equal share per mix of single parts and pairs); use --top with --rank error "
+                f"for more nominal candidates."
+            )
         from rcpick.textfiles import read_text
 
         extra = list(query_extra or []) + [("netlist", read_text(net.path), net.path)]
         result = FindResult(
-            spec=spec, target=target, candidates=candidates, window=window,
+            spec=spec,
+            target=target,
+            candidates=candidates,
+            window=window,
             searched={f"{v.name}_combinations": len(v.combos) for v in varied},
-            descriptions={"r": infos["R"].description, "c": infos["C"].description,
-                          "r_model": settings["r_model"], "c_model": settings["c_model"]},
-            analysis={"rank": spec.rank, "rule": ranking.rule_text(spec.rank, target.limit), "analysed": len(rows),
-                      "settings": settings, "stock": stock.path if stock else None},
-            warnings=list(net.warnings) + list(mdl.warnings), notes=notes,
+            descriptions={
+                "r": infos["R"].description,
+                "c": infos["C"].description,
+                "r_model": settings["r_model"],
+                "c_model": settings["c_model"],
+            },
+            analysis={
+                "rank": spec.rank,
+                "rule": ranking.rule_text(spec.rank, target.limit),
+                "analysed": len(rows),
+                "settings": settings,
+                "stock": stock.path if stock else None,
+            },
+            warnings=list(net.warnings) + list(mdl.warnings),
+            notes=notes,
             recommendation=recommendation(candidates, target, spec.rank, window),
-            rule=ranking.rule_text(spec.rank, target.limit), settings=resolved_settings(spec, plan),
-            network=net_doc, query_extra=extra)
+            rule=ranking.rule_text(spec.rank, target.limit),
+            settings=resolved_settings(spec, plan),
+            network=net_doc,
+            query_extra=extra,
+        )
     result.warnings = [_spell(w, spec) for w in result.warnings]
     return result
 
@@ -483,3 +599,7 @@ def _varied_value(design: NetDesign, names: list[str], letter: str) -> float:
 def _cost(design: NetDesign, names: list[str]) -> float:
     prices = [p.line.unit_price if p.line is not None else None for n in names for p in design.parts[n]]
     return float(sum(prices)) if prices and all(p is not None for p in prices) else math.nan  # type: ignore[arg-type]
+
+
+def _value_text(part: NetPart) -> str:
+    return format_si(part.value, "Ω" if part.kind == "resistance" else "F", 3, trim=True)

@@ -67,11 +67,13 @@ class Netlist:
             seen.setdefault(e.b, None)
         return list(seen)
 
-    def with_values(self, values: dict[str, float]) -> "Netlist":
+    def with_values(self, values: dict[str, float]) -> Netlist:
         """The same netlist with some element values replaced (name → SI value)."""
         upper = {k.upper(): v for k, v in values.items()}
-        elements = tuple(Element(e.name, e.letter, e.a, e.b, upper.get(e.name.upper(), e.value), e.line, e.params)
-                         for e in self.elements)
+        elements = tuple(
+            Element(e.name, e.letter, e.a, e.b, upper.get(e.name.upper(), e.value), e.line, e.params)
+            for e in self.elements
+        )
         return Netlist(self.path, elements, self.warnings)
 
 
@@ -88,8 +90,10 @@ def _value_warnings(name: str, letter: str, text: str, value: float) -> list[str
     out = []
     if re.search(r"\dM(?![eE][gG])[A-Za-zΩ]*$", text) or re.fullmatch(r"\d*M\d+", text):
         unit = {"R": "Ω", "C": "F", "V": "V", "I": "A"}[letter]
-        out.append(f"{name}: {text!r} reads as mega ({value:g} {unit}) in rcpick's notation; SPICE reads M as milli "
-                   f"— write Meg or m to be explicit")
+        out.append(
+            f"{name}: {text!r} reads as mega ({value:g} {unit}) in rcpick's notation; SPICE reads M as milli "
+            f"— write Meg or m to be explicit"
+        )
     if letter == "R" and value < 1.0:
         out.append(f"{name}: {value:g} Ω is below 1 Ω; if you meant mega write Meg (1Meg = 1 MΩ)")
     if letter == "C" and value >= 1e-3:
@@ -97,8 +101,10 @@ def _value_warnings(name: str, letter: str, text: str, value: float) -> list[str
     return out
 
 
-_ANNOTATIONS = {"R": "a tolerance (1%), a TCR (100ppm) or a technology (thin-film)",
-                "C": "a tolerance (10%), a dielectric code (X7R), a coefficient (-750ppm) or a start voltage (@2.5V)"}
+_ANNOTATIONS = {
+    "R": "a tolerance (1%), a TCR (100ppm) or a technology (thin-film)",
+    "C": "a tolerance (10%), a dielectric code (X7R), a coefficient (-750ppm) or a start voltage (@2.5V)",
+}
 
 
 def _params(path: str, line: int, letter: str, tokens: list[str], name: str) -> dict:
@@ -114,8 +120,9 @@ def _params(path: str, line: int, letter: str, tokens: list[str], name: str) -> 
         try:
             if "=" in token:
                 example = "R1 vdd rst 47k 1% 100ppm" if letter == "R" else "C1 rst 0 100n 10% X7R"
-                raise BadValue(f"{name}: {token!r} is the old key=value form; write annotations as bare tokens, "
-                               f"e.g. {example}")
+                raise BadValue(
+                    f"{name}: {token!r} is the old key=value form; write annotations as bare tokens, e.g. {example}"
+                )
             if letter in "VI":
                 raise BadValue(f"{name}: sources take no annotations, got {token!r}")
             if token.endswith("%"):
@@ -165,8 +172,12 @@ def parse(text: str, path: str = "<netlist>") -> Netlist:
         if letter in "VI" and len(tokens) >= 5 and tokens[3].upper() == "DC":
             tokens = tokens[:3] + tokens[4:]
         if len(tokens) < 4:
-            raise _fail(path, number, f"{name} needs two nodes and a value, e.g. {letter}1 a b "
-                                      f"{ {'R': '10k', 'C': '100n', 'V': '5', 'I': '1m'}[letter]}")
+            raise _fail(
+                path,
+                number,
+                f"{name} needs two nodes and a value, e.g. {letter}1 a b "
+                f"{ {'R': '10k', 'C': '100n', 'V': '5', 'I': '1m'}[letter] }",
+            )
         a, b, value_text = tokens[1], tokens[2], tokens[3]
         try:
             value = parse_quantity(value_text, KINDS[letter], positive=letter in "RC")
@@ -235,8 +246,12 @@ def check(net: Netlist) -> None:
     if not net.elements:
         raise _fail(path, None, "no element lines")
     if len(net.elements) > MAX_ELEMENTS:
-        raise _fail(path, None, f"{len(net.elements):,} elements is more than the {MAX_ELEMENTS} rcpick analyses "
-                                f"(every Monte Carlo unit solves the whole network)")
+        raise _fail(
+            path,
+            None,
+            f"{len(net.elements):,} elements is more than the {MAX_ELEMENTS} rcpick analyses "
+            f"(every Monte Carlo unit solves the whole network)",
+        )
     if not any(GROUND in (e.a, e.b) for e in net.elements):
         raise _fail(path, None, "no element connects to ground (node 0)")
     union = Union()

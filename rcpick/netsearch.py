@@ -46,21 +46,23 @@ class Quantity:
     level: float | None = None
     level_is_volts: bool = False
 
-    def evaluate(self, net: Netlist, values: dict[str, np.ndarray], batch: int,
-                 level_scale: np.ndarray | None = None) -> np.ndarray:
+    def evaluate(
+        self, net: Netlist, values: dict[str, np.ndarray], batch: int, level_scale: np.ndarray | None = None
+    ) -> np.ndarray:
         """The quantity (s or Hz) for each network of the batch."""
         out = np.empty(batch)
         for start in range(0, batch, BATCH):
-            part = {k: v[start:start + BATCH] for k, v in values.items()}
+            part = {k: v[start : start + BATCH] for k, v in values.items()}
             n = min(BATCH, batch - start)
-            scale = None if level_scale is None else level_scale[start:start + BATCH]
-            out[start:start + n] = self._evaluate(net, part, n, scale)
+            scale = None if level_scale is None else level_scale[start : start + BATCH]
+            out[start : start + n] = self._evaluate(net, part, n, scale)
         return out
 
     def _evaluate(self, net, values, batch, level_scale):
         tau = nodal.dominant_tau(net, values, batch)
         if self.kind == "tau":
             return tau
+        assert self.node is not None  # a delay or a corner is timed at a node
         if self.kind == "cutoff":
             return corner_frequency(net, values, batch, self.node, tau)
         resp = nodal.step_response(net, values, batch)
@@ -144,8 +146,8 @@ def _rank(index, value, target_value, varied, top):
             keep.append(i)
         if len(keep) == top:
             break
-    keep = np.array(keep, dtype=np.intp)
-    return index[keep], value[keep], error[keep]
+    rows = np.array(keep, dtype=np.intp)
+    return index[rows], value[rows], error[rows]
 
 
 def search(net: Netlist, varied: list[Varied], quantity: Quantity, target_value: float, top: int) -> NetShortlist:
@@ -159,8 +161,10 @@ def search(net: Netlist, varied: list[Varied], quantity: Quantity, target_value:
         else:
             outer = np.zeros((1, 0), dtype=np.intp)  # one varied element: a single bisection
         if len(outer) > ENUMERATION_CAP:
-            raise BadValue(f"{len(outer):,} combinations of the other varied elements is too many; narrow their ranges",
-                           setting="vary")
+            raise BadValue(
+                f"{len(outer):,} combinations of the other varied elements is too many; narrow their ranges",
+                setting="vary",
+            )
         m = len(outer)
         inner_values = varied[inner].combos.value
 
@@ -193,15 +197,19 @@ def search(net: Netlist, varied: list[Varied], quantity: Quantity, target_value:
     else:
         total = math.prod(sizes)
         if total > ENUMERATION_CAP:
-            raise BadValue(f"a {quantity.kind} target is searched by trying every combination, and "
-                           f"{total:,} exceeds {ENUMERATION_CAP:,}: use {{r_parts}} 1/{{c_parts}} 1 or narrower ranges",
-                           setting="vary")
+            raise BadValue(
+                f"a {quantity.kind} target is searched by trying every combination, and "
+                f"{total:,} exceeds {ENUMERATION_CAP:,}: use {{r_parts}} 1/{{c_parts}} 1 or narrower ranges",
+                setting="vary",
+            )
         index = np.array(list(itertools.product(*[range(s) for s in sizes])), dtype=np.intp).reshape(-1, len(varied))
         values = {v.name: v.combos.value[index[:, k]] for k, v in enumerate(varied)}
         value = quantity.evaluate(net, values, len(index))
     index, value, error = _rank(index, value, target_value, varied, top)
     if len(value) == 0 or abs(error[0]) > REACH_LIMIT:
         closest = f" (closest is {error[0]:+.0%})" if len(value) else ""
-        raise Unreachable(f"no allowed combination comes within {REACH_LIMIT:.0%} of the target{closest}; "
-                          f"widen the ranges of the varied elements")
+        raise Unreachable(
+            f"no allowed combination comes within {REACH_LIMIT:.0%} of the target{closest}; "
+            f"widen the ranges of the varied elements"
+        )
     return NetShortlist(tuple(varied), index, value, error)

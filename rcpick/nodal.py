@@ -144,10 +144,10 @@ def matrices(st: Structure, values: dict[str, np.ndarray] | None = None, batch: 
 class Modes:
     """Generalised eigen-decomposition of the pencil (C, G), per network in the batch."""
 
-    tau: np.ndarray    # (B, n): time constants, s; inf for conserved charge, 0 for algebraic directions
-    phi: np.ndarray    # (B, n, n): mode shapes (columns), with φᵀ·K·φ = I
-    mu: np.ndarray     # (B, n): eigenvalues of the shifted pencil
-    kind: np.ndarray   # (B, n): 0 algebraic, 1 finite nonzero, 2 infinite (s = 0)
+    tau: np.ndarray  # (B, n): time constants, s; inf for conserved charge, 0 for algebraic directions
+    phi: np.ndarray  # (B, n, n): mode shapes (columns), with φᵀ·K·φ = I
+    mu: np.ndarray  # (B, n): eigenvalues of the shifted pencil
+    kind: np.ndarray  # (B, n): 0 algebraic, 1 finite nonzero, 2 infinite (s = 0)
 
 
 def modes(g_mat: np.ndarray, c_mat: np.ndarray) -> Modes:
@@ -241,9 +241,9 @@ class Response:
 
     st: Structure
     particular: np.ndarray  # (B, n)
-    coeff: np.ndarray       # (B, n): weight of each mode
+    coeff: np.ndarray  # (B, n): weight of each mode
     modes: Modes
-    start: np.ndarray       # (B, n): unknowns just after the step
+    start: np.ndarray  # (B, n): unknowns just after the step
 
     def node(self, node: str, times: np.ndarray) -> np.ndarray:
         """Voltage (V) of ``node`` at ``times`` (s, shape (T,) or (B, T)), shape (B, T)."""
@@ -258,7 +258,9 @@ class Response:
         live = self.modes.kind != 0
         tau = np.where(self.modes.kind == 1, self.modes.tau, 1.0)
         decay = np.where((self.modes.kind == 1)[:, :, None], np.exp(-t[:, None, :] / tau[:, :, None]), 1.0)
-        value = self.particular[:, row][:, None] + np.sum(np.where(live[:, :, None], weights[:, :, None] * decay, 0.0), axis=1)
+        value = self.particular[:, row][:, None] + np.sum(
+            np.where(live[:, :, None], weights[:, :, None] * decay, 0.0), axis=1
+        )
         return value + offset
 
     def final(self, node: str) -> np.ndarray:
@@ -382,8 +384,10 @@ def first_order(net: Netlist) -> FirstOrder | None:
         row = st.row_of[node]
         return 0.0 if row is None else phi[row]
 
-    best = max(((a, b) for i, a in enumerate(terminals) for b in terminals[i + 1:]),
-               key=lambda pair: abs(potential(pair[0]) - potential(pair[1])))
+    best = max(
+        ((a, b) for i, a in enumerate(terminals) for b in terminals[i + 1 :]),
+        key=lambda pair: abs(potential(pair[0]) - potential(pair[1])),
+    )
     test = np.zeros(st.size)
     for node, sign in ((best[0], 1.0), (best[1], -1.0)):
         if st.row_of[node] is not None:

@@ -31,8 +31,22 @@ from rcpick.errors import BadValue
 
 #: SI prefix → power of ten.
 PREFIXES: dict[str, int] = {
-    "f": -15, "p": -12, "n": -9, "u": -6, "µ": -6, "μ": -6, "m": -3,
-    "": 0, "k": 3, "K": 3, "M": 6, "Meg": 6, "MEG": 6, "meg": 6, "G": 9, "T": 12,
+    "f": -15,
+    "p": -12,
+    "n": -9,
+    "u": -6,
+    "µ": -6,
+    "μ": -6,
+    "m": -3,
+    "": 0,
+    "k": 3,
+    "K": 3,
+    "M": 6,
+    "Meg": 6,
+    "MEG": 6,
+    "meg": 6,
+    "G": 9,
+    "T": 12,
 }
 
 #: Quantity kind → (unit symbol for output, accepted unit spellings).
@@ -63,8 +77,20 @@ _RKM_OUT: dict[str, dict[int, str]] = {
     "resistance": {-3: "L", 0: "R", 3: "K", 6: "M", 9: "G", 12: "T"},
     "capacitance": {-12: "p", -9: "n", -6: "u", -3: "m", 0: "F"},
 }
-_SI_OUT: dict[int, str] = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G",
-                           12: "T", 15: "P"}
+_SI_OUT: dict[int, str] = {
+    -18: "a",
+    -15: "f",
+    -12: "p",
+    -9: "n",
+    -6: "µ",
+    -3: "m",
+    0: "",
+    3: "k",
+    6: "M",
+    9: "G",
+    12: "T",
+    15: "P",
+}
 
 # Digits are ASCII 0-9 only (re.ASCII): other scripts' digits are refused with a message.
 _NUMBER = r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?"
@@ -73,12 +99,12 @@ _RKM_RE = re.compile(r"^(?P<int>[0-9]*)(?P<letter>[^0-9\s.])(?P<frac>[0-9]*)$", 
 
 #: The range of each quantity rcpick accepts (SI units); outside it a value is refused, not computed with.
 LIMITS: dict[str, tuple[float, float]] = {
-    "resistance": (1e-6, 1e15),    # 1 µΩ … 1 PΩ
-    "capacitance": (1e-15, 1e3),   # 1 fF … 1 kF
-    "time": (1e-12, 1e9),          # 1 ps … about 32 years
-    "frequency": (1e-9, 1e12),     # 1 nHz … 1 THz
-    "voltage": (1e-9, 1e7),        # 1 nV … 10 MV (in size)
-    "current": (1e-15, 1e3),       # 1 fA … 1 kA (in size)
+    "resistance": (1e-6, 1e15),  # 1 µΩ … 1 PΩ
+    "capacitance": (1e-15, 1e3),  # 1 fF … 1 kF
+    "time": (1e-12, 1e9),  # 1 ps … about 32 years
+    "frequency": (1e-9, 1e12),  # 1 nHz … 1 THz
+    "voltage": (1e-9, 1e7),  # 1 nV … 10 MV (in size)
+    "current": (1e-15, 1e3),  # 1 fA … 1 kA (in size)
 }
 
 
@@ -109,7 +135,7 @@ def _split_prefix_unit(rest: str) -> tuple[int, str] | None:
     for prefix in sorted(PREFIXES, key=len, reverse=True):
         if not rest.startswith(prefix):
             continue
-        unit = rest[len(prefix):].strip()
+        unit = rest[len(prefix) :].strip()
         if unit == "" or _unit_kind(unit) is not None:
             return PREFIXES[prefix], unit
     return None
@@ -130,8 +156,11 @@ def _in_limits(value: float, kind: str, raw: object) -> float:
     if not math.isfinite(value):
         raise BadValue(f"{raw!r} is not a finite {kind}", value=raw)
     if value != 0 and not low <= abs(value) <= high:
-        raise BadValue(f"{raw!r} is outside the {kind}s rcpick handles "
-                       f"({format_si(low, symbol, trim=True)} … {format_si(high, symbol, trim=True)})", value=raw)
+        raise BadValue(
+            f"{raw!r} is outside the {kind}s rcpick handles "
+            f"({format_si(low, symbol, trim=True)} … {format_si(high, symbol, trim=True)})",
+            value=raw,
+        )
     return value
 
 
@@ -169,7 +198,9 @@ def parse_quantity(text: str, kind: str, *, positive: bool = True) -> float:
         elif kind == "resistance" and letter == "m" and rkm["frac"]:
             raise BadValue(
                 f"{raw!r} is ambiguous: write {rkm['int']}M{rkm['frac']} for "
-                f"{rkm['int']}.{rkm['frac']} MΩ or {rkm['int']}L{rkm['frac']} for milliohm", value=raw)
+                f"{rkm['int']}.{rkm['frac']} MΩ or {rkm['int']}L{rkm['frac']} for milliohm",
+                value=raw,
+            )
     if value is None:
         match = _SI_RE.match(text)
         split = _split_prefix_unit(match["rest"]) if match else None
@@ -249,10 +280,13 @@ def parse_level(text: str, *, signed_volts: bool = False) -> Level:
     if stripped[-1:] in ("V", "v"):
         return Level(parse_quantity(stripped, "voltage", positive=not signed_volts), True)
     try:
-        fraction = parse_percent(stripped) if stripped.endswith("%") else float(_plain_number(stripped, "a level", "0.7"))
+        fraction = (
+            parse_percent(stripped) if stripped.endswith("%") else float(_plain_number(stripped, "a level", "0.7"))
+        )
     except BadValue:
-        raise BadValue(f"cannot read {text!r}; expected a fraction (0.7), a percent (70%) or a voltage (2.3V)",
-                       value=text) from None
+        raise BadValue(
+            f"cannot read {text!r}; expected a fraction (0.7), a percent (70%) or a voltage (2.3V)", value=text
+        ) from None
     return Level(fraction, False)
 
 
@@ -267,7 +301,7 @@ def _place_point(figures: str, shift: int) -> tuple[str, str]:
     if shift < 0:
         return "", "0" * (-shift - 1) + figures
     figures = figures.ljust(shift + 1, "0")
-    return figures[: shift + 1], figures[shift + 1:]
+    return figures[: shift + 1], figures[shift + 1 :]
 
 
 def format_si(value: float, unit: str, digits: int = 3, *, trim: bool = False) -> str:
@@ -375,8 +409,9 @@ def parse_temperature_range(text: str) -> tuple[float, float]:
         body = re.sub(r"\s*(°C|C|degC)$", "", part)
         _refuse_foreign_digits(body)
         if not re.fullmatch(_NUMBER, body or "x", re.ASCII):
-            raise BadValue(f"cannot read {text!r}; expected MIN:MAX in °C such as 0:70 or -40:85, or one temperature",
-                           value=text)
+            raise BadValue(
+                f"cannot read {text!r}; expected MIN:MAX in °C such as 0:70 or -40:85, or one temperature", value=text
+            )
         values.append(float(Decimal(body)))
     if len(values) == 1:
         values.append(values[0])
@@ -410,6 +445,8 @@ def parse_arrangement(text: str, kind: str) -> tuple[str, list[float]]:
     joiner, name = found[0]
     pieces = text.split(joiner)
     if len(found) > 1 or len(pieces) != 2:
-        raise BadValue(f"cannot read {text!r}; give one part (4k7) or two wired in series (4k7+330) or parallel "
-                       f"(10k//10k)", value=text)
+        raise BadValue(
+            f"cannot read {text!r}; give one part (4k7) or two wired in series (4k7+330) or parallel (10k//10k)",
+            value=text,
+        )
     return name, [parse_quantity(p, kind) for p in pieces]

@@ -21,8 +21,9 @@ def _pyplot():
     try:
         import matplotlib
     except ImportError:
-        raise PlotUnavailable("pictures need matplotlib: pip install 'rcpick[plot]' (or pip install matplotlib)",
-                              setting="plot") from None
+        raise PlotUnavailable(
+            "pictures need matplotlib: pip install 'rcpick[plot]' (or pip install matplotlib)", setting="plot"
+        ) from None
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
@@ -45,7 +46,9 @@ def _scale(unit: str, values: list[float]) -> tuple[float, str]:
     """A display factor and unit label (e.g. 1e3, 'ms') for values in SI ``unit``."""
     label = format_si(max(abs(v) for v in values), unit, 3).split(" ")[-1]
     prefix = label[: -len(unit)] if label.endswith(unit) else ""
-    factor = {"f": 1e15, "p": 1e12, "n": 1e9, "µ": 1e6, "m": 1e3, "": 1.0, "k": 1e-3, "M": 1e-6, "G": 1e-9, "T": 1e-12}[prefix]
+    factor = {"f": 1e15, "p": 1e12, "n": 1e9, "µ": 1e6, "m": 1e3, "": 1.0, "k": 1e-3, "M": 1e-6, "G": 1e-9, "T": 1e-12}[
+        prefix
+    ]
     return factor, f"{prefix}{unit}"
 
 
@@ -86,17 +89,34 @@ def shortlist_png(document: dict, path: Path, force: bool = False) -> None:
     for i, cand in enumerate(cands):
         sp = cand["spread"]
         y = len(cands) - 1 - i
-        ax.plot([sp["worst_min"] * factor, sp["worst_max"] * factor], [y, y], color="#c03030", linewidth=2,
-                label="worst case" if i == 0 else None)
-        ax.plot([sp["p_low"] * factor, sp["p_high"] * factor], [y, y], color="#4878a8", linewidth=7, alpha=0.8,
-                label="Monte Carlo 0.135–99.865 %" if i == 0 else None, solid_capstyle="butt")
+        ax.plot(
+            [sp["worst_min"] * factor, sp["worst_max"] * factor],
+            [y, y],
+            color="#c03030",
+            linewidth=2,
+            label="worst case" if i == 0 else None,
+        )
+        ax.plot(
+            [sp["p_low"] * factor, sp["p_high"] * factor],
+            [y, y],
+            color="#4878a8",
+            linewidth=7,
+            alpha=0.8,
+            label="Monte Carlo 0.135–99.865 %" if i == 0 else None,
+            solid_capstyle="butt",
+        )
         ax.plot([cand["value"] * factor], [y], "ko", markersize=4, label="nominal" if i == 0 else None)
     if window:
         ax.axvspan(window["low"] * factor, window["high"] * factor, color="#40a040", alpha=0.12, label="window")
     ax.axvline(target["value"] * factor, color="black", linestyle=":", linewidth=1)
     ax.set_yticks(range(len(cands)))
-    ax.set_yticklabels([f"{c['rank']}. {' | '.join(c[p]['text'] for p in ('r', 'c') if p in c)} "
-                        f"({c['spread']['yield'] * 100:.0f} %)" for c in reversed(cands)])
+    ax.set_yticklabels(
+        [
+            f"{c['rank']}. {' | '.join(c[p]['text'] for p in ('r', 'c') if p in c)} "
+            f"({c['spread']['yield'] * 100:.0f} %)"
+            for c in reversed(cands)
+        ]
+    )
     ax.set_xlabel(f"{target['kind']} ({label})")
     ax.set_title(f"Shortlist for {target['kind']} = {format_si(target['value'], target['unit'])}")
     height = 0.45 * len(cands) + 1.6

@@ -24,16 +24,21 @@ SPAN_DECIMALS = 4
 ERROR_DECIMALS = 12
 
 RULES = {
-    "yield": ("Ranked by yield; designs whose 95 % yield intervals overlap count as tied and are ordered by fewer "
-              "parts, then a narrower worst case, a worst case inside the window, a smaller error, an impedance "
-              "nearer the middle of the range."),
+    "yield": (
+        "Ranked by yield; designs whose 95 % yield intervals overlap count as tied and are ordered by fewer "
+        "parts, then a narrower worst case, a worst case inside the window, a smaller error, an impedance "
+        "nearer the middle of the range."
+    ),
     "error": "Ranked by the nominal error alone, then fewer parts, then lower R and C.",
     "spread": "Ranked by the narrowest worst-case span, then fewer parts, then a smaller error.",
-    "cost": ("Ranked by cost per board among the designs whose yield reaches the minimum asked; then by yield as "
-             "usual."),
+    "cost": (
+        "Ranked by cost per board among the designs whose yield reaches the minimum asked; then by yield as usual."
+    ),
 }
-LIMIT_RULE = ("Designs whose worst case meets the limit come first, those stressing their parts least first (for a "
-              "discharge: the largest resistance), then as usual.")
+LIMIT_RULE = (
+    "Designs whose worst case meets the limit come first, those stressing their parts least first (for a "
+    "discharge: the largest resistance), then as usual."
+)
 
 
 @dataclass(frozen=True)
@@ -44,21 +49,27 @@ class Scores:
     yield_low: np.ndarray
     yield_high: np.ndarray
     parts: np.ndarray
-    span: np.ndarray        # worst-case span relative to the design's nominal
-    inside: np.ndarray      # worst case wholly inside the window (or meeting the limit)
+    span: np.ndarray  # worst-case span relative to the design's nominal
+    inside: np.ndarray  # worst case wholly inside the window (or meeting the limit)
     abs_error: np.ndarray
     off_middle: np.ndarray  # |ln(R / middle of the R range)|
     r_ohm: np.ndarray
     c_farad: np.ndarray
-    sound: np.ndarray       # practical values and within derated ratings
-    stress: np.ndarray      # highest share of a derated rating used (NaN when unknown)
-    cost: np.ndarray        # per board (NaN when a price is unknown)
+    sound: np.ndarray  # practical values and within derated ratings
+    stress: np.ndarray  # highest share of a derated rating used (NaN when unknown)
+    cost: np.ndarray  # per board (NaN when a price is unknown)
 
 
 def _tiebreak(s: Scores, i: int) -> tuple:
-    return (int(s.parts[i]), round(float(s.span[i]), SPAN_DECIMALS), not bool(s.inside[i]),
-            round(float(s.abs_error[i]), ERROR_DECIMALS), round(float(s.off_middle[i]), 6),
-            float(s.r_ohm[i]), float(s.c_farad[i]))
+    return (
+        int(s.parts[i]),
+        round(float(s.span[i]), SPAN_DECIMALS),
+        not bool(s.inside[i]),
+        round(float(s.abs_error[i]), ERROR_DECIMALS),
+        round(float(s.off_middle[i]), 6),
+        float(s.r_ohm[i]),
+        float(s.c_farad[i]),
+    )
 
 
 def by_yield(s: Scores, rows: np.ndarray) -> list[int]:
@@ -100,8 +111,9 @@ def order(s: Scores, rank: str, *, limit: str | None = None, min_yield: float = 
         elif limit is not None and k < 2 and np.any(np.isfinite(s.stress[group])):
             # least stress first, then as usual among equals
             ranked = by_yield(s, group)
-            out += sorted(ranked, key=lambda i: (round(float(np.nan_to_num(s.stress[i], nan=np.inf)), 9),
-                                                 ranked.index(i)))
+            out += sorted(
+                ranked, key=lambda i: (round(float(np.nan_to_num(s.stress[i], nan=np.inf)), 9), ranked.index(i))
+            )
         else:
             out += by_yield(s, group)
     return out

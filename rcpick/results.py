@@ -57,9 +57,17 @@ class Part:
         else:
             out["dielectric"] = self.dielectric
         out["part_number"] = self.part_number
-        out["stock"] = None if self.stock_line is None else {
-            "line": self.stock_line, "package": self.package or None, "unit_price": self.unit_price,
-            "on_hand": self.on_hand, "voltage_v": self.voltage_v}
+        out["stock"] = (
+            None
+            if self.stock_line is None
+            else {
+                "line": self.stock_line,
+                "package": self.package or None,
+                "unit_price": self.unit_price,
+                "on_hand": self.on_hand,
+                "voltage_v": self.voltage_v,
+            }
+        )
         return out
 
 
@@ -68,15 +76,20 @@ def part_of(kind: str, value: float, model, line=None) -> Part:
     tcr = None
     if kind == "resistance" and model.drift.shared:
         tcr = (format_ppm(model.drift.cold[0]), format_ppm(model.drift.cold[1]))
-    return Part(kind, float(value), tuple(model.tolerance), tcr,
-                technology=model.name if kind == "resistance" else None,
-                dielectric=model.name if kind == "capacitance" else None,
-                part_number=model.part_number or None,
-                stock_line=line.line if line is not None else None,
-                package=line.package if line is not None else None,
-                unit_price=line.unit_price if line is not None else None,
-                on_hand=line.on_hand if line is not None else None,
-                voltage_v=line.voltage if line is not None else None)
+    return Part(
+        kind,
+        float(value),
+        tuple(model.tolerance),
+        tcr,
+        technology=model.name if kind == "resistance" else None,
+        dielectric=model.name if kind == "capacitance" else None,
+        part_number=model.part_number or None,
+        stock_line=line.line if line is not None else None,
+        package=line.package if line is not None else None,
+        unit_price=line.unit_price if line is not None else None,
+        on_hand=line.on_hand if line is not None else None,
+        voltage_v=line.voltage if line is not None else None,
+    )
 
 
 ARRANGEMENTS = ("single", "series", "parallel")
@@ -103,8 +116,13 @@ class Position:
 
     def to_dict(self) -> dict:
         key = self.unit_key
-        return {key: self.value, "arrangement": self.arrangement, f"parts_{key}": [p.value for p in self.parts],
-                "text": self.text, "parts_detail": [p.to_dict() for p in self.parts]}
+        return {
+            key: self.value,
+            "arrangement": self.arrangement,
+            f"parts_{key}": [p.value for p in self.parts],
+            "text": self.text,
+            "parts_detail": [p.to_dict() for p in self.parts],
+        }
 
 
 @dataclass(frozen=True)
@@ -122,9 +140,17 @@ class Spread:
     never: int = 0
 
     def to_dict(self) -> dict:
-        return {"worst_min": self.worst_min, "worst_max": self.worst_max, "p_low": self.p_low,
-                "p_median": self.p_median, "p_high": self.p_high, "sigma": self.sigma, "yield": self.yield_,
-                "yield_ci": list(self.yield_ci) if self.yield_ci is not None else None, "never": self.never}
+        return {
+            "worst_min": self.worst_min,
+            "worst_max": self.worst_max,
+            "p_low": self.p_low,
+            "p_median": self.p_median,
+            "p_high": self.p_high,
+            "sigma": self.sigma,
+            "yield": self.yield_,
+            "yield_ci": list(self.yield_ci) if self.yield_ci is not None else None,
+            "never": self.never,
+        }
 
 
 @dataclass(frozen=True)
@@ -238,12 +264,13 @@ class _Saves:
         return pd.DataFrame(flat_rows(self.to_dict()))
 
     def query_rows(self) -> list[tuple[str, Any, str]]:
-        from rcpick import __version__
         import datetime
+
+        from rcpick import __version__
 
         rows: list[tuple[str, Any, str]] = [
             ("rcpick version", __version__, "rcpick"),
-            ("date", datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds"), "rcpick"),
+            ("date", datetime.datetime.now(datetime.UTC).isoformat(timespec="seconds"), "rcpick"),
             ("seed used", self.spec.seed, "rcpick"),
         ]
         rows += list(self.query_extra)
@@ -264,8 +291,16 @@ class _Saves:
             rows.append((key, value, source))
         return rows
 
-    def save(self, path: str | Path, *, boards: int | None = None, spares: float | str | None = None,
-             order: tuple[int, ...] | list[int] | None = None, sheet: str | None = None, force: bool = False) -> Path:
+    def save(
+        self,
+        path: str | Path,
+        *,
+        boards: int | None = None,
+        spares: float | str | None = None,
+        order: tuple[int, ...] | list[int] | None = None,
+        sheet: str | None = None,
+        force: bool = False,
+    ) -> Path:
         """Write the shortlist: ``.xlsx`` (sheets shortlist, order, query) or ``.csv`` (one sheet: ``sheet``).
 
         ``boards`` and ``spares`` default to the request's own; ``order`` lists the ranks whose parts go on the
@@ -312,8 +347,9 @@ class _Saves:
         for cand in doc["candidates"][:10]:
             sp = cand["spread"]
             y = f"{sp['yield'] * 100:.1f} %" if sp.get("yield") is not None else "–"
-            wiring = " | ".join(cand[p]["text"] for p in ("r", "c") if p in cand) or \
-                " | ".join(f"{n} {e['text']}" for n, e in cand.get("elements", {}).items())
+            wiring = " | ".join(cand[p]["text"] for p in ("r", "c") if p in cand) or " | ".join(
+                f"{n} {e['text']}" for n, e in cand.get("elements", {}).items()
+            )
             lines.append(f"  {cand['rank']:>2}. {wiring:<28} error {cand['error'] * 100:+.3f} %  yield {y}")
         if len(doc["candidates"]) > 10:
             lines.append(f"  … {len(doc['candidates']) - 10} more (to_frame() lists them all)")
@@ -408,15 +444,17 @@ class SpreadResult(_Saves):
             doc["error"] = finite(d.error)
         if self.period_parts is not None:
             doc["period"] = self.period_parts
-        doc.update({
-            "spread": d.spread.to_dict(),
-            "contributions": self.contributions,
-            "histogram": {"edges": self.histogram[0], "counts": self.histogram[1]},
-            "temperatures_c": self.temperatures_c,
-            "reference_c": self.reference_c,
-            "analysis": self.analysis,
-            "warnings": list(self.warnings),
-        })
+        doc.update(
+            {
+                "spread": d.spread.to_dict(),
+                "contributions": self.contributions,
+                "histogram": {"edges": self.histogram[0], "counts": self.histogram[1]},
+                "temperatures_c": self.temperatures_c,
+                "reference_c": self.reference_c,
+                "analysis": self.analysis,
+                "warnings": list(self.warnings),
+            }
+        )
         if d.stress is not None:
             doc["stress"] = d.stress
         return doc
@@ -433,8 +471,16 @@ class SpreadResult(_Saves):
 
         return pd.DataFrame(flat_rows(self.as_shortlist()))
 
-    def save(self, path: str | Path, *, boards: int | None = None, spares: float | str | None = None,
-             order=None, sheet: str | None = None, force: bool = False) -> Path:
+    def save(
+        self,
+        path: str | Path,
+        *,
+        boards: int | None = None,
+        spares: float | str | None = None,
+        order=None,
+        sheet: str | None = None,
+        force: bool = False,
+    ) -> Path:
         """Write the design: ``.xlsx`` (shortlist, order and query sheets) or ``.csv`` (one sheet)."""
         from rcpick import export
         from rcpick.settings import SETTINGS
@@ -464,9 +510,11 @@ class SpreadResult(_Saves):
     def _headline(self) -> str:
         sp = self.design.spread
         y = f", yield {sp.yield_ * 100:.1f} %" if sp.yield_ is not None else ""
-        return (f"rcpick.spread: R = {self.design.r.text if self.design.r else '?'}, C = "
-                f"{self.design.c.text if self.design.c else '?'}; nominal "
-                f"{format_si(self.nominal, self.target.unit, 4)}{y}")
+        return (
+            f"rcpick.spread: R = {self.design.r.text if self.design.r else '?'}, C = "
+            f"{self.design.c.text if self.design.c else '?'}; nominal "
+            f"{format_si(self.nominal, self.target.unit, 4)}{y}"
+        )
 
     def _repr_html_(self) -> str:
         return f"<pre>{self.__repr__()}</pre>"
@@ -475,10 +523,15 @@ class SpreadResult(_Saves):
         sp = self.design.spread
         unit = self.target.unit
         rows = [self._headline()]
-        for name, value in (("worst case", (sp.worst_min, sp.worst_max)), ("MC 0.135 %…99.865 %", (sp.p_low, sp.p_high))):
+        for name, value in (
+            ("worst case", (sp.worst_min, sp.worst_max)),
+            ("MC 0.135 %…99.865 %", (sp.p_low, sp.p_high)),
+        ):
             lo, hi = value
-            rows.append(f"  {name:<20} {format_si(lo, unit, 4) if lo is not None else '–'} … "
-                        f"{format_si(hi, unit, 4) if hi is not None else '–'}")
+            rows.append(
+                f"  {name:<20} {format_si(lo, unit, 4) if lo is not None else '–'} … "
+                f"{format_si(hi, unit, 4) if hi is not None else '–'}"
+            )
         return "\n".join(rows)
 
 
@@ -509,8 +562,10 @@ class NetworkResult:
         line = f"rcpick.network: {self.document['netlist']}: order {self.order}, time constants {taus}"
         step = self.step
         if step and step.get("t_threshold_s") is not None:
-            line += f"; {step['node']} reaches {format_si(step['threshold_v'], 'V', 4)} at " \
-                    f"{format_si(step['t_threshold_s'], 's', 4)}"
+            line += (
+                f"; {step['node']} reaches {format_si(step['threshold_v'], 'V', 4)} at "
+                f"{format_si(step['t_threshold_s'], 's', 4)}"
+            )
         return line
 
     def _repr_html_(self) -> str:

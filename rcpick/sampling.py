@@ -84,7 +84,7 @@ class Sampler:
         for k, start in enumerate(range(0, samples, CHUNK_UNITS)):
             yield k, min(CHUNK_UNITS, samples - start)
 
-    def chunk(self, index: int, units: int) -> "Chunk":
+    def chunk(self, index: int, units: int) -> Chunk:
         return Chunk(self, index, units)
 
 
@@ -102,8 +102,9 @@ class Chunk:
         """Uniform numbers in (0, 1) of one stream and field, shape (units,)."""
         key = (stream, field)
         if key not in self._uniform:
-            seq = np.random.SeedSequence(self.sampler.entropy,
-                                         spawn_key=(zlib.crc32(stream.encode()), FIELDS[field], self.index))
+            seq = np.random.SeedSequence(
+                self.sampler.entropy, spawn_key=(zlib.crc32(stream.encode()), FIELDS[field], self.index)
+            )
             u = np.random.Generator(np.random.PCG64(seq)).random(self.units)
             # (0, 1) open: keeps the inverse CDFs finite
             self._uniform[key] = np.clip(u, 2.0**-54, 1.0 - 2.0**-54, out=u)

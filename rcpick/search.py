@@ -135,17 +135,16 @@ def best(r: Combos, c: Combos, target: Target, top: int = 10, chunk: int = 4096)
         o_flat = np.broadcast_to(o_idx[:, None], i_idx.shape)[valid]
         i_flat = i_idx[valid]
         ri, ci = (o_flat, i_flat) if outer_is_r else (i_flat, o_flat)
-        best_ri, best_ci = _keep_best(
-            np.concatenate([best_ri, ri]), np.concatenate([best_ci, ci]), r, c, target, top)
+        best_ri, best_ci = _keep_best(np.concatenate([best_ri, ri]), np.concatenate([best_ci, ci]), r, c, target, top)
     shortlist = Shortlist(r, c, best_ri, best_ci)
     if len(shortlist) == 0:
-        raise Unreachable("no allowed combination reaches the target at all; widen {r_min}/{r_max} or "
-                          "{c_min}/{c_max}")
+        raise Unreachable("no allowed combination reaches the target at all; widen {r_min}/{r_max} or {c_min}/{c_max}")
     first = target.error(target.quantity(shortlist.r_ohm[:1], shortlist.c_farad[:1]))[0]
     if not abs(first) <= REACH_LIMIT:
         raise Unreachable(
             f"no allowed combination comes within {REACH_LIMIT:.0%} of the target "
-            f"(closest is {first:+.0%}); widen {{r_min}}/{{r_max}} or {{c_min}}/{{c_max}}")
+            f"(closest is {first:+.0%}); widen {{r_min}}/{{r_max}} or {{c_min}}/{{c_max}}"
+        )
     return shortlist
 
 
@@ -214,8 +213,9 @@ def window_pool(r: Combos, c: Combos, target: Target, window: tuple[float, float
     for parts, found_list in groups.items():
         ri = np.concatenate([f[0] for f in found_list]) if found_list else np.empty(0, dtype=np.intp)
         ci = np.concatenate([f[1] for f in found_list]) if found_list else np.empty(0, dtype=np.intp)
-        order = rank_order(_abs_error(target, r.value[ri], c.value[ci]), r.parts[ri] + c.parts[ci], r.value[ri],
-                           c.value[ci])
+        order = rank_order(
+            _abs_error(target, r.value[ri], c.value[ci]), r.parts[ri] + c.parts[ci], r.value[ri], c.value[ci]
+        )
         merged[parts] = (ri[order], ci[order])
     chosen = share_cap(merged, cap)
     ri = np.concatenate([chosen[p][0] for p in sorted(chosen)]).astype(np.intp)

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from rcpick.datafiles import load_toml
-from rcpick.errors import BadValue, UnknownName
+from rcpick.errors import BadValue, RcpickError, UnknownName
 
 #: Relative slack when deciding whether a value lies on a range end.
 RANGE_SLACK = 1e-9
@@ -82,3 +82,62 @@ def get(name: str) -> Series:
 def closest(below: float, above: float, value: float) -> float:
     """The nearer of two neighbours by ratio (log distance), the lower one on a tie."""
     return below if value / below <= above / value else above
+
+
+_CAPACITOR_MARKS = ("F", "p", "n", "u", "µ", "μ")
+_DEFAULT_RANGE = {"resistance": ("1k", "10k"), "capacitance": ("1n", "10n")}
+
+
+def series_values(series_name: str, *, low=None, high=None, around=None, part: str | None = None) -> dict:
+    """The values of an IEC 60063 series in a range (both ends included), or the two around one value.
+
+    ``part`` is ``resistor`` or ``capacitor`` (guessed from the values' units when not given). Returns the
+    JSON document of ``rcpick values`` plus ``kind``.
+    """
+    from rcpick import settings
+    from rcpick.notation import format_si
+
+    try:
+        chosen = get(series_name)
+    except RcpickError as error:
+        raise error.about("series") from None
+    kinds = {"resistor": "resistance", "capacitor": "capacitance"}
+    if part is not None and part not in kinds:
+        raise BadValue(f"unknown part {part!r}; accepted: resistor, capacitor", setting="part", value=part)
+    guessed = any(isinstance(t, str) and any(m in t for m in _CAPACITOR_MARKS) for t in (low, high, around))
+    kind = kinds[part] if part else ("capacitance" if guessed else "resistance")
+
+    def read(raw, name: str) -> float:
+        try:
+            return settings.quantity(kind)(raw)
+        except RcpickError as error:
+            raise error.about(name) from None
+
+    document: dict = {"series": chosen.name, "tolerance": chosen.tolerance}
+    listed = None
+    if low is not None or high is not None or around is None:
+        lo = read(low if low is not None else _DEFAULT_RANGE[kind][0], "from")
+        hi = (
+            read(high, "to")
+            if high is not None
+            else (lo * 10 if low is not None else read(_DEFAULT_RANGE[kind][1], "to"))
+        )
+        unit = "Ω" if kind == "resistance" else "F"
+        if lo > hi:
+            raise BadValue(
+                f"{format_si(lo, unit, trim=True)} is above {{to}} {format_si(hi, unit, trim=True)}",
+                setting="from",
+                value=low,
+            )
+        if hi / lo > 1e9:
+            raise BadValue("lists at most nine decades; narrow {from}…{to}", setting="to", value=high)
+        listed = [float(v) for v in chosen.values(lo, hi)]
+    if around is not None:
+        centre = read(around, "around")
+        below, above = chosen.neighbours(centre)
+        document.update(below=below, above=above, closest=closest(below, above, centre), around=centre)
+        if listed is None:
+            listed = sorted({below, above})
+    document["values"] = listed
+    document["kind"] = kind
+    return document

@@ -77,6 +77,7 @@ class Setting:
 
 # --- readers -------------------------------------------------------------------
 
+
 def _is_number(raw: Any) -> bool:
     return isinstance(raw, (int, float)) and not isinstance(raw, bool)
 
@@ -96,6 +97,7 @@ def _finite(raw: Any) -> float:
 
 def quantity(kind: str, *, signed: bool = False) -> Callable[[Any], float]:
     """A quantity in rcpick's notation, or a number in SI units."""
+
     def parse(raw: Any) -> float:
         if _is_number(raw):
             value = _finite(raw)
@@ -103,6 +105,7 @@ def quantity(kind: str, *, signed: bool = False) -> Callable[[Any], float]:
                 raise BadValue(f"{raw!r} must be greater than 0 {notation.UNITS[kind][0]}", value=raw)
             return notation._in_limits(value, kind, raw)
         return notation.parse_quantity(_text(raw), kind, positive=not signed)
+
     return parse
 
 
@@ -147,6 +150,7 @@ def count(low: int, high: int, what: str | None = None) -> Callable[[Any], int]:
                 raise BadValue(f"{raw!r} is not {what}", value=raw)
             raise BadValue(f"{raw!r} must be between {low:,} and {high:,}", value=raw)
         return value
+
     return parse
 
 
@@ -175,8 +179,9 @@ def tolerance(raw: Any) -> tuple[float, float]:
     if widest < lo:
         raise BadValue(f"tolerance {raw!r} must be greater than 0 % (at least ±{lo:.3%})", value=raw)
     if symmetric and widest > hi:
-        raise BadValue(f"tolerance {raw!r} is more than ±{hi:.0%}; write a range such as -20%:+80% if you mean it",
-                       value=raw)
+        raise BadValue(
+            f"tolerance {raw!r} is more than ±{hi:.0%}; write a range such as -20%:+80% if you mean it", value=raw
+        )
     if low <= -1.0 or high >= 1.0:
         raise BadValue(f"tolerance {raw!r} must be less than 100 % on each side", value=raw)
     return low, high
@@ -188,14 +193,18 @@ def window(raw: Any) -> tuple[float, float]:
     if low > 0 or high < 0:
         raise BadValue(f"window {raw!r} excludes the target itself; it must run from ≤ 0 % to ≥ 0 %", value=raw)
     if low <= -1.0 or high - low <= 0 or high > 10.0:
-        raise BadValue(f"window {raw!r} must be wider than 0 %, its low side above −100 % and its high side at most "
-                       f"+1000 %", value=raw)
+        raise BadValue(
+            f"window {raw!r} must be wider than 0 %, its low side above −100 % and its high side at most +1000 %",
+            value=raw,
+        )
     return low, high
 
 
-def fraction(low: float, high: float, *, low_open: bool = False, high_open: bool = False,
-             what: str = "a percentage") -> Callable[[Any], float]:
+def fraction(
+    low: float, high: float, *, low_open: bool = False, high_open: bool = False, what: str = "a percentage"
+) -> Callable[[Any], float]:
     """A fraction typed as '30%' or 0.3, within [low, high] (ends excluded where open)."""
+
     def parse(raw: Any) -> float:
         value = _finite(raw) if _is_number(raw) else _percent_or_fraction(_text(raw))
         below = value <= low if low_open else value < low
@@ -205,6 +214,7 @@ def fraction(low: float, high: float, *, low_open: bool = False, high_open: bool
             hi_text = f"{high:.0%}" + (" (excluded)" if high_open else "")
             raise BadValue(f"{raw!r} must lie in {lo_text}…{hi_text} ({what})", value=raw)
         return value
+
     return parse
 
 
@@ -218,7 +228,11 @@ def share(raw: Any) -> float:
         value = _finite(raw)
     else:
         text = _text(raw).strip()
-        value = notation.parse_percent(text) if text.endswith("%") else float(notation._plain_number(text, "a fraction", "0.8"))
+        value = (
+            notation.parse_percent(text)
+            if text.endswith("%")
+            else float(notation._plain_number(text, "a fraction", "0.8"))
+        )
     if not 0.0 <= value <= 1.0:
         raise BadValue(f"{raw!r} must lie between 0 and 1 (or 0 % and 100 %)", value=raw)
     return value
@@ -253,6 +267,7 @@ def choice(*names: str) -> Callable[[Any], str]:
         if text not in names:
             raise BadValue(f"{raw!r} is not one of {', '.join(names)}", value=raw)
         return text
+
     return parse
 
 
@@ -353,127 +368,458 @@ NETWORK = "Network"
 
 _DECLARED = [
     # target
-    Setting("tau", quantity("time"), help="Target time constant R·C, e.g. 10ms.", metavar="TIME", panel=TARGET, in_files=False),
-    Setting("cutoff", quantity("frequency"), help="Target first-order corner frequency 1/(2πRC), e.g. 1.5kHz.",
-            metavar="FREQ", panel=TARGET, in_files=False),
-    Setting("delay", quantity("time"), metavar="TIME", panel=TARGET, in_files=False,
-            help="Target time from the start (the step, or --from) until the node crosses --threshold, e.g. 200ms."),
-    Setting("period", quantity("time"), metavar="TIME", panel=TARGET, in_files=False,
-            help="Target period of an RC relaxation oscillator switching at --thresholds LOW:HIGH, e.g. 1ms."),
-    Setting("threshold", level, metavar="LEVEL", panel=TARGET, in_files=False,
-            help="Level for --delay: a fraction (0.7), a percent (70%) or a voltage (2.3V, needs --supply)."),
-    Setting("from_level", level, option="--from", metavar="LEVEL", panel=TARGET, in_files=False,
-            help="With --delay: the node's level at the start, as --threshold reads it (default: 0, or the "
-                 "supply with --falling)."),
-    Setting("thresholds", level_pair, metavar="LOW:HIGH", panel=TARGET, in_files=False,
-            help="For --period: the lower and upper switching levels, e.g. 33%:67% or 1.1V:2.2V."),
-    Setting("supply", quantity("voltage"), metavar="VOLTS", panel=TARGET,
-            help="Step size in volts: the final value when charging, the start value with --falling."),
-    Setting("falling", flag, default=False, shown="off", flag=True, panel=TARGET, in_files=False,
-            help="The node discharges from its start value down to --threshold."),
-    Setting("leak", quantity("current", signed=True), metavar="AMPS", panel=TARGET, in_files=False,
-            help="Constant current drawn out of the node (negative: into it), e.g. 1uA; needs --supply."),
-    Setting("limit", choice("upper", "lower"), metavar="upper|lower", panel=TARGET,
-            help="A one-sided requirement instead of --window: upper, every unit at or below the target (a "
-                 "discharge within 3 s); lower, at or above it (a reset of at least 50 ms)."),
+    Setting(
+        "tau",
+        quantity("time"),
+        help="Target time constant R·C, e.g. 10ms.",
+        metavar="TIME",
+        panel=TARGET,
+        in_files=False,
+    ),
+    Setting(
+        "cutoff",
+        quantity("frequency"),
+        help="Target first-order corner frequency 1/(2πRC), e.g. 1.5kHz.",
+        metavar="FREQ",
+        panel=TARGET,
+        in_files=False,
+    ),
+    Setting(
+        "delay",
+        quantity("time"),
+        metavar="TIME",
+        panel=TARGET,
+        in_files=False,
+        help="Target time from the start (the step, or --from) until the node crosses --threshold, e.g. 200ms.",
+    ),
+    Setting(
+        "period",
+        quantity("time"),
+        metavar="TIME",
+        panel=TARGET,
+        in_files=False,
+        help="Target period of an RC relaxation oscillator switching at --thresholds LOW:HIGH, e.g. 1ms.",
+    ),
+    Setting(
+        "threshold",
+        level,
+        metavar="LEVEL",
+        panel=TARGET,
+        in_files=False,
+        help="Level for --delay: a fraction (0.7), a percent (70%) or a voltage (2.3V, needs --supply).",
+    ),
+    Setting(
+        "from_level",
+        level,
+        option="--from",
+        metavar="LEVEL",
+        panel=TARGET,
+        in_files=False,
+        help="With --delay: the node's level at the start, as --threshold reads it (default: 0, or the "
+        "supply with --falling).",
+    ),
+    Setting(
+        "thresholds",
+        level_pair,
+        metavar="LOW:HIGH",
+        panel=TARGET,
+        in_files=False,
+        help="For --period: the lower and upper switching levels, e.g. 33%:67% or 1.1V:2.2V.",
+    ),
+    Setting(
+        "supply",
+        quantity("voltage"),
+        metavar="VOLTS",
+        panel=TARGET,
+        help="Step size in volts: the final value when charging, the start value with --falling.",
+    ),
+    Setting(
+        "falling",
+        flag,
+        default=False,
+        shown="off",
+        flag=True,
+        panel=TARGET,
+        in_files=False,
+        help="The node discharges from its start value down to --threshold.",
+    ),
+    Setting(
+        "leak",
+        quantity("current", signed=True),
+        metavar="AMPS",
+        panel=TARGET,
+        in_files=False,
+        help="Constant current drawn out of the node (negative: into it), e.g. 1uA; needs --supply.",
+    ),
+    Setting(
+        "limit",
+        choice("upper", "lower"),
+        metavar="upper|lower",
+        panel=TARGET,
+        help="A one-sided requirement instead of --window: upper, every unit at or below the target (a "
+        "discharge within 3 s); lower, at or above it (a reset of at least 50 ms).",
+    ),
     # search space
-    Setting("r_series", series_name, default="E24", shown="E24", metavar="SERIES", panel=RESISTOR,
-            help="E-series for resistors."),
-    Setting("r_min", quantity("resistance"), default=1e3, shown="1k", metavar="OHMS", panel=RESISTOR,
-            help="Smallest resistor and smallest combined R."),
-    Setting("r_max", quantity("resistance"), shown="1Meg (less for a technology whose practical range ends lower)",
-            metavar="OHMS", panel=RESISTOR, help="Largest resistor and largest combined R."),
-    Setting("r_parts", part_count, default=2, shown="2", count=True, metavar="1|2", panel=RESISTOR,
-            help="Most resistors in the R position: 1, or 2 for series/parallel pairs."),
-    Setting("fix_r", quantity("resistance"), metavar="OHMS", panel=RESISTOR,
-            help="Use exactly this R (standard or not) and search only C."),
-    Setting("c_series", series_name, default="E12", shown="E12", metavar="SERIES", panel=CAPACITOR,
-            help="E-series for capacitors."),
-    Setting("c_min", quantity("capacitance"), default=100e-12, shown="100p", metavar="FARADS", panel=CAPACITOR,
-            help="Smallest capacitor and smallest combined C."),
-    Setting("c_max", quantity("capacitance"), shown="10u, or the dielectric's practical largest value if lower",
-            metavar="FARADS", panel=CAPACITOR, help="Largest capacitor and largest combined C."),
-    Setting("c_parts", part_count, default=2, shown="2", count=True, metavar="1|2", panel=CAPACITOR,
-            help="Most capacitors in the C position: 1 or 2."),
-    Setting("fix_c", quantity("capacitance"), metavar="FARADS", panel=CAPACITOR,
-            help="Use exactly this C (standard or not) and search only R."),
+    Setting(
+        "r_series",
+        series_name,
+        default="E24",
+        shown="E24",
+        metavar="SERIES",
+        panel=RESISTOR,
+        help="E-series for resistors.",
+    ),
+    Setting(
+        "r_min",
+        quantity("resistance"),
+        default=1e3,
+        shown="1k",
+        metavar="OHMS",
+        panel=RESISTOR,
+        help="Smallest resistor and smallest combined R.",
+    ),
+    Setting(
+        "r_max",
+        quantity("resistance"),
+        shown="1Meg (less for a technology whose practical range ends lower)",
+        metavar="OHMS",
+        panel=RESISTOR,
+        help="Largest resistor and largest combined R.",
+    ),
+    Setting(
+        "r_parts",
+        part_count,
+        default=2,
+        shown="2",
+        count=True,
+        metavar="1|2",
+        panel=RESISTOR,
+        help="Most resistors in the R position: 1, or 2 for series/parallel pairs.",
+    ),
+    Setting(
+        "fix_r",
+        quantity("resistance"),
+        metavar="OHMS",
+        panel=RESISTOR,
+        help="Use exactly this R (standard or not) and search only C.",
+    ),
+    Setting(
+        "c_series",
+        series_name,
+        default="E12",
+        shown="E12",
+        metavar="SERIES",
+        panel=CAPACITOR,
+        help="E-series for capacitors.",
+    ),
+    Setting(
+        "c_min",
+        quantity("capacitance"),
+        default=100e-12,
+        shown="100p",
+        metavar="FARADS",
+        panel=CAPACITOR,
+        help="Smallest capacitor and smallest combined C.",
+    ),
+    Setting(
+        "c_max",
+        quantity("capacitance"),
+        shown="10u, or the dielectric's practical largest value if lower",
+        metavar="FARADS",
+        panel=CAPACITOR,
+        help="Largest capacitor and largest combined C.",
+    ),
+    Setting(
+        "c_parts",
+        part_count,
+        default=2,
+        shown="2",
+        count=True,
+        metavar="1|2",
+        panel=CAPACITOR,
+        help="Most capacitors in the C position: 1 or 2.",
+    ),
+    Setting(
+        "fix_c",
+        quantity("capacitance"),
+        metavar="FARADS",
+        panel=CAPACITOR,
+        help="Use exactly this C (standard or not) and search only R.",
+    ),
     # part models
-    Setting("r_tol", tolerance, shown="the R series' usual", metavar="PCT", panel=SPREAD,
-            help="Resistor tolerance: 1% or -2%:+1%."),
-    Setting("r_tcr", ppm_band, shown="from --r-tech", metavar="PPM", panel=SPREAD,
-            help="Resistor TCR bound: 100ppm (±100 ppm/°C) or a range -250ppm:-50ppm."),
-    Setting("r_tech", lambda raw: technology_name(raw), default="thick-film", shown="thick-film", metavar="NAME", panel=SPREAD,
-            help="Resistor technology: thick-film, thin-film, metal-film, carbon-film."),
-    Setting("c_tol", tolerance, shown="the dielectric's usual", metavar="PCT", panel=SPREAD,
-            help="Capacitor tolerance: 5% or -20%:+80%."),
-    Setting("dielectric", lambda raw: dielectric_code(raw), shown="X7R (ELECTROLYTIC for a bank discharging from above 100 V)", metavar="CODE",
-            panel=SPREAD, help="Capacitor dielectric: an EIA code (C0G, NP0, U2J, X7R, X5R, Y5V …), PP, PET, PPS or "
-                               "ELECTROLYTIC."),
-    Setting("c_tc", ppm_band, shown="from --dielectric", metavar="PPM", panel=SPREAD,
-            help="Custom linear capacitor coefficient, replacing the dielectric's: 30ppm or -870ppm:-630ppm."),
-    Setting("c_bias_loss", fraction(0.0, 0.9, what="capacitance lost at the working bias"), default=0.0,
-            shown="0%", metavar="PCT", panel=SPREAD,
-            help="Capacitance lost at the working DC bias, read off the part's own curve, e.g. 30%."),
-    Setting("c_age", hours, shown="none (parts at the 1000 h reference age)", metavar="HOURS", panel=SPREAD,
-            help="Hours since the capacitor's last de-ageing (class 2 ageing against the 1000 h reference), e.g. 87600."),
-    Setting("temp", temperature, default=(0.0, 70.0), shown="0:70", metavar="MIN:MAX", panel=SPREAD,
-            help="Temperature range MIN:MAX in °C, or one temperature."),
-    Setting("window", window, default=(-0.1, 0.1), shown="10%", metavar="PCT", panel=SPREAD,
-            help="Acceptance window around the target: 10% (±10 %) or -5%:+10%."),
-    Setting("threshold_tol", tolerance, shown="none", metavar="PCT", panel=SPREAD,
-            help="Tolerance of the threshold level(s), e.g. 3% (delay and period targets)."),
-    Setting("dist", choice("uniform", "normal"), default="uniform", shown="uniform", metavar="uniform|normal",
-            panel=SPREAD, help="Distribution inside each band: uniform, or normal with the band at ±3σ, truncated."),
-    Setting("samples", count(MIN_SAMPLES, MAX_SAMPLES), count=True, shown="20000 (2000 with --net)", metavar="N", panel=SPREAD,
-            help=f"Monte Carlo units, {MIN_SAMPLES}…{MAX_SAMPLES:,}; 2e4 and 20k read too."),
-    Setting("seed", count(0, 2**63 - 1, "a whole number 0 or more"), count=True, default=1, shown="1", metavar="N", panel=SPREAD,
-            help="Random seed; the same seed gives the same numbers."),
-    Setting("lot_share", share, default=1.0, shown="1 (parts of one value from one reel move together)",
-            metavar="FRACTION", panel=SPREAD,
-            help="How much of a part's deviation and temperature curve it shares with the other parts of its value "
-                 "in the design: 1, one reel; 0, independent parts."),
+    Setting(
+        "r_tol",
+        tolerance,
+        shown="the R series' usual",
+        metavar="PCT",
+        panel=SPREAD,
+        help="Resistor tolerance: 1% or -2%:+1%.",
+    ),
+    Setting(
+        "r_tcr",
+        ppm_band,
+        shown="from --r-tech",
+        metavar="PPM",
+        panel=SPREAD,
+        help="Resistor TCR bound: 100ppm (±100 ppm/°C) or a range -250ppm:-50ppm.",
+    ),
+    Setting(
+        "r_tech",
+        lambda raw: technology_name(raw),
+        default="thick-film",
+        shown="thick-film",
+        metavar="NAME",
+        panel=SPREAD,
+        help="Resistor technology: thick-film, thin-film, metal-film, carbon-film.",
+    ),
+    Setting(
+        "c_tol",
+        tolerance,
+        shown="the dielectric's usual",
+        metavar="PCT",
+        panel=SPREAD,
+        help="Capacitor tolerance: 5% or -20%:+80%.",
+    ),
+    Setting(
+        "dielectric",
+        lambda raw: dielectric_code(raw),
+        shown="X7R (ELECTROLYTIC for a bank discharging from above 100 V)",
+        metavar="CODE",
+        panel=SPREAD,
+        help="Capacitor dielectric: an EIA code (C0G, NP0, U2J, X7R, X5R, Y5V …), PP, PET, PPS or ELECTROLYTIC.",
+    ),
+    Setting(
+        "c_tc",
+        ppm_band,
+        shown="from --dielectric",
+        metavar="PPM",
+        panel=SPREAD,
+        help="Custom linear capacitor coefficient, replacing the dielectric's: 30ppm or -870ppm:-630ppm.",
+    ),
+    Setting(
+        "c_bias_loss",
+        fraction(0.0, 0.9, what="capacitance lost at the working bias"),
+        default=0.0,
+        shown="0%",
+        metavar="PCT",
+        panel=SPREAD,
+        help="Capacitance lost at the working DC bias, read off the part's own curve, e.g. 30%.",
+    ),
+    Setting(
+        "c_age",
+        hours,
+        shown="none (parts at the 1000 h reference age)",
+        metavar="HOURS",
+        panel=SPREAD,
+        help="Hours since the capacitor's last de-ageing (class 2 ageing against the 1000 h reference), e.g. 87600.",
+    ),
+    Setting(
+        "temp",
+        temperature,
+        default=(0.0, 70.0),
+        shown="0:70",
+        metavar="MIN:MAX",
+        panel=SPREAD,
+        help="Temperature range MIN:MAX in °C, or one temperature.",
+    ),
+    Setting(
+        "window",
+        window,
+        default=(-0.1, 0.1),
+        shown="10%",
+        metavar="PCT",
+        panel=SPREAD,
+        help="Acceptance window around the target: 10% (±10 %) or -5%:+10%.",
+    ),
+    Setting(
+        "threshold_tol",
+        tolerance,
+        shown="none",
+        metavar="PCT",
+        panel=SPREAD,
+        help="Tolerance of the threshold level(s), e.g. 3% (delay and period targets).",
+    ),
+    Setting(
+        "dist",
+        choice("uniform", "normal"),
+        default="uniform",
+        shown="uniform",
+        metavar="uniform|normal",
+        panel=SPREAD,
+        help="Distribution inside each band: uniform, or normal with the band at ±3σ, truncated.",
+    ),
+    Setting(
+        "samples",
+        count(MIN_SAMPLES, MAX_SAMPLES),
+        count=True,
+        shown="20000 (2000 with --net)",
+        metavar="N",
+        panel=SPREAD,
+        help=f"Monte Carlo units, {MIN_SAMPLES}…{MAX_SAMPLES:,}; 2e4 and 20k read too.",
+    ),
+    Setting(
+        "seed",
+        count(0, 2**63 - 1, "a whole number 0 or more"),
+        count=True,
+        default=1,
+        shown="1",
+        metavar="N",
+        panel=SPREAD,
+        help="Random seed; the same seed gives the same numbers.",
+    ),
+    Setting(
+        "lot_share",
+        share,
+        default=1.0,
+        shown="1 (parts of one value from one reel move together)",
+        metavar="FRACTION",
+        panel=SPREAD,
+        help="How much of a part's deviation and temperature curve it shares with the other parts of its value "
+        "in the design: 1, one reel; 0, independent parts.",
+    ),
     # ranking
-    Setting("rank", choice("yield", "error", "spread", "cost"), default="yield", shown="yield",
-            metavar="yield|error|spread|cost", panel=RANKING,
-            help="yield: highest yield, designs tied within their 95 % intervals ordered by fewer parts, narrower "
-                 "worst case, smaller error; error: smallest nominal error; spread: narrowest worst case; cost: "
-                 "cheapest design meeting --min-yield."),
-    Setting("top", count(1, MAX_TOP), count=True, default=10, shown="10", metavar="N", panel=RANKING,
-            help=f"How many candidates to list (1…{MAX_TOP})."),
-    Setting("min_yield", fraction(0.0, 1.0, low_open=True, what="a yield"), default=0.95, shown="95%",
-            metavar="PCT", panel=RANKING, help="Yield a design must reach for --rank cost."),
+    Setting(
+        "rank",
+        choice("yield", "error", "spread", "cost"),
+        default="yield",
+        shown="yield",
+        metavar="yield|error|spread|cost",
+        panel=RANKING,
+        help="yield: highest yield, designs tied within their 95 % intervals ordered by fewer parts, narrower "
+        "worst case, smaller error; error: smallest nominal error; spread: narrowest worst case; cost: "
+        "cheapest design meeting --min-yield.",
+    ),
+    Setting(
+        "top",
+        count(1, MAX_TOP),
+        count=True,
+        default=10,
+        shown="10",
+        metavar="N",
+        panel=RANKING,
+        help=f"How many candidates to list (1…{MAX_TOP}).",
+    ),
+    Setting(
+        "min_yield",
+        fraction(0.0, 1.0, low_open=True, what="a yield"),
+        default=0.95,
+        shown="95%",
+        metavar="PCT",
+        panel=RANKING,
+        help="Yield a design must reach for --rank cost.",
+    ),
     # stress
-    Setting("r_power", lambda raw: _power(raw), shown="the technology's usual rating", metavar="WATTS",
-            panel=STRESS, help="Resistor power rating per part, e.g. 0.25W, 250mW or 1/4W."),
-    Setting("r_voltage", quantity("voltage"), shown="the technology's usual rating", metavar="VOLTS", panel=STRESS,
-            help="Resistor limiting element voltage per part, e.g. 200V."),
-    Setting("c_voltage", quantity("voltage"), shown="none (not checked)", metavar="VOLTS", panel=STRESS,
-            help="Capacitor rated voltage per part, e.g. 50V."),
-    Setting("derate", derating, default=(0.5, 0.8), shown="50%:80%", metavar="POWER:VOLTAGE", panel=STRESS,
-            help="Share of each rating a part may use: power : voltage."),
+    Setting(
+        "r_power",
+        lambda raw: _power(raw),
+        shown="the technology's usual rating",
+        metavar="WATTS",
+        panel=STRESS,
+        help="Resistor power rating per part, e.g. 0.25W, 250mW or 1/4W.",
+    ),
+    Setting(
+        "r_voltage",
+        quantity("voltage"),
+        shown="the technology's usual rating",
+        metavar="VOLTS",
+        panel=STRESS,
+        help="Resistor limiting element voltage per part, e.g. 200V.",
+    ),
+    Setting(
+        "c_voltage",
+        quantity("voltage"),
+        shown="none (not checked)",
+        metavar="VOLTS",
+        panel=STRESS,
+        help="Capacitor rated voltage per part, e.g. 50V.",
+    ),
+    Setting(
+        "derate",
+        derating,
+        default=(0.5, 0.8),
+        shown="50%:80%",
+        metavar="POWER:VOLTAGE",
+        panel=STRESS,
+        help="Share of each rating a part may use: power : voltage.",
+    ),
     # stock and export
-    Setting("stock", path_text, shown="none (E-series)", metavar="FILE", panel=STOCK,
-            help="CSV or XLSX of stocked/approved parts (columns kind, value; optional tolerance, tcr, dielectric, "
-                 "part_number, unit_price, on_hand, package, voltage). Its values replace the series for the kinds "
-                 "it lists; demo names an invented demo stock."),
-    Setting("boards", count(1, 10_000_000), count=True, default=1, shown="1", metavar="N", panel=STOCK,
-            help="Boards to build, for order quantities."),
-    Setting("spares", fraction(0.0, 10.0, what="extra parts ordered"), default=0.0, shown="0%", metavar="PCT",
-            panel=STOCK, help="Extra parts ordered, e.g. 5%; totals are rounded up."),
+    Setting(
+        "stock",
+        path_text,
+        shown="none (E-series)",
+        metavar="FILE",
+        panel=STOCK,
+        help="CSV or XLSX of stocked/approved parts (columns kind, value; optional tolerance, tcr, dielectric, "
+        "part_number, unit_price, on_hand, package, voltage). Its values replace the series for the kinds "
+        "it lists; demo names an invented demo stock.",
+    ),
+    Setting(
+        "boards",
+        count(1, 10_000_000),
+        count=True,
+        default=1,
+        shown="1",
+        metavar="N",
+        panel=STOCK,
+        help="Boards to build, for order quantities.",
+    ),
+    Setting(
+        "spares",
+        fraction(0.0, 10.0, what="extra parts ordered"),
+        default=0.0,
+        shown="0%",
+        metavar="PCT",
+        panel=STOCK,
+        help="Extra parts ordered, e.g. 5%; totals are rounded up.",
+    ),
     # network
-    Setting("net", path_text, metavar="FILE", panel=NETWORK, in_files=False,
-            help="Search inside a network: a netlist of R, C, V, I lines (see rcpick net)."),
-    Setting("vary", names, metavar="NAMES", panel=NETWORK, in_files=False,
-            help="With --net: the elements to search, e.g. R1,C1 (one R and/or one C); the others keep their values."),
-    Setting("node", lambda raw: _text(raw).strip(), metavar="NODE", panel=NETWORK, in_files=False,
-            help="With --net and --delay or --cutoff: the node whose response is timed."),
+    Setting(
+        "net",
+        path_text,
+        metavar="FILE",
+        panel=NETWORK,
+        in_files=False,
+        help="Search inside a network: a netlist of R, C, V, I lines (see rcpick net).",
+    ),
+    Setting(
+        "vary",
+        names,
+        metavar="NAMES",
+        panel=NETWORK,
+        in_files=False,
+        help="With --net: the elements to search, e.g. R1,C1 (one R and/or one C); the others keep their values.",
+    ),
+    Setting(
+        "node",
+        lambda raw: _text(raw).strip(),
+        metavar="NODE",
+        panel=NETWORK,
+        in_files=False,
+        help="With --net and --delay or --cutoff: the node whose response is timed.",
+    ),
     # one design (rcpick spread) and one netlist (rcpick net)
-    Setting("r", lambda raw: arrangement("resistance", raw), metavar="PARTS", in_files=False,
-            help="Resistor position: 4k7, 4k7+330 (series) or 10k//10k (parallel; || too)."),
-    Setting("c", lambda raw: arrangement("capacitance", raw), metavar="PARTS", in_files=False,
-            help="Capacitor position: 100n, 47n+47n (series) or 47n//47n (parallel)."),
-    Setting("file", lambda raw: path_text(raw), metavar="FILE", in_files=False,
-            help="Netlist of R, C, V and I element lines."),
+    Setting(
+        "r",
+        lambda raw: arrangement("resistance", raw),
+        metavar="PARTS",
+        in_files=False,
+        help="Resistor position: 4k7, 4k7+330 (series) or 10k//10k (parallel; || too).",
+    ),
+    Setting(
+        "c",
+        lambda raw: arrangement("capacitance", raw),
+        metavar="PARTS",
+        in_files=False,
+        help="Capacitor position: 100n, 47n+47n (series) or 47n//47n (parallel).",
+    ),
+    Setting(
+        "file",
+        lambda raw: path_text(raw),
+        metavar="FILE",
+        in_files=False,
+        option="FILE",
+        help="Netlist of R, C, V and I element lines.",
+    ),
 ]
 
 
@@ -493,11 +839,21 @@ def _signed_level(raw: Any) -> Level:
 
 
 #: A network node's threshold may be a negative voltage, and its fraction reads against the node's own swing.
-NETWORK_THRESHOLD = Setting("threshold", _signed_level, metavar="LEVEL", in_files=False,
-                            help="With --node: time to reach this level: a voltage (2.0V), or a fraction or percent "
-                                 "of the way from the node's lower to its higher end value (0.7, 70%).")
-NETWORK_NODE = Setting("node", lambda raw: _text(raw).strip(), metavar="NODE", in_files=False,
-                       help="Report the step response at this node.")
+NETWORK_THRESHOLD = Setting(
+    "threshold",
+    _signed_level,
+    metavar="LEVEL",
+    in_files=False,
+    help="With --node: time to reach this level: a voltage (2.0V), or a fraction or percent "
+    "of the way from the node's lower to its higher end value (0.7, 70%).",
+)
+NETWORK_NODE = Setting(
+    "node",
+    lambda raw: _text(raw).strip(),
+    metavar="NODE",
+    in_files=False,
+    help="Report the step response at this node.",
+)
 
 
 def _power(raw: Any) -> float:
@@ -512,14 +868,18 @@ def _power(raw: Any) -> float:
             try:
                 value = float(num) / float(den)
             except (ValueError, ZeroDivisionError):
-                raise BadValue(f"cannot read {raw!r}; expected a power such as 0.25W, 250mW or 1/4W", value=raw) from None
+                raise BadValue(
+                    f"cannot read {raw!r}; expected a power such as 0.25W, 250mW or 1/4W", value=raw
+                ) from None
         else:
             prefix = {"m": 1e-3, "k": 1e3, "u": 1e-6, "µ": 1e-6}.get(body[-1:], 1.0)
             digits = body[:-1] if prefix != 1.0 else body
             try:
                 value = float(notation._plain_number(digits, "a power", "0.25W")) * prefix
             except BadValue:
-                raise BadValue(f"cannot read {raw!r}; expected a power such as 0.25W, 250mW or 1/4W", value=raw) from None
+                raise BadValue(
+                    f"cannot read {raw!r}; expected a power such as 0.25W, 250mW or 1/4W", value=raw
+                ) from None
     if not 1e-6 <= value <= 1e6:
         raise BadValue(f"{raw!r} is outside 1 µW … 1 MW", value=raw)
     return value
@@ -535,8 +895,14 @@ def named(*names: str) -> list[Setting]:
 
 # --- names as the user wrote them ------------------------------------------------
 
+#: Arguments (not options) of the commands, as their help names them.
+ARGUMENTS = {"series": "SERIES", "file": "FILE", "format": "--format"}
+
+
 def option_name(setting: str) -> str:
     """The command line's name for a setting, ``--r-min``."""
+    if setting in ARGUMENTS:
+        return ARGUMENTS[setting]
     found = SETTINGS.get(setting)
     return found.flag_name if found else "--" + setting.replace("_", "-")
 

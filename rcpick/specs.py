@@ -21,8 +21,9 @@ from dataclasses import dataclass, field, fields
 from pathlib import Path
 from typing import Any, ClassVar, TypeVar
 
-from rcpick import combos, models, series, settings, target as targets
+from rcpick import combos, models, series, settings
 from rcpick import stock as stocks
+from rcpick import target as targets
 from rcpick.errors import BadValue, ClashingOptions, Namer, RcpickError, parameter_name
 from rcpick.notation import Level, format_si
 from rcpick.settings import SETTINGS, Setting
@@ -38,6 +39,7 @@ VALID_SHARE = 0.1
 
 
 # --- layers --------------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class Layer:
@@ -100,7 +102,7 @@ def _file_value(path: Path, setting: Setting, value: Any, base: Path) -> Any:
     where = f"{path}: key {setting.key!r}"
     if isinstance(value, bool):
         if not setting.flag:
-            raise BadValue(f"{where} must be text such as \"{setting.shown or 'a value'}\", got {value!r}")
+            raise BadValue(f'{where} must be text such as "{setting.shown or "a value"}", got {value!r}')
         return value
     if isinstance(value, (int, float)):
         return value if setting.count else str(value)
@@ -120,6 +122,7 @@ def config_layer(explicit: Path | None, cwd: Path | None = None) -> Layer | None
 
 
 # --- specs ---------------------------------------------------------------------
+
 
 def _field(name: str, setting: Setting | None = None) -> Any:
     chosen = setting or SETTINGS[name]
@@ -240,15 +243,18 @@ class Spec:
         if kind == "period" and self.thresholds is None:  # type: ignore[attr-defined]
             raise ClashingOptions("{period} needs {thresholds} LOW:HIGH (33%:67% or 1.1V:2.2V)", setting="period")
         if self.leak is not None and self.supply is None:  # type: ignore[attr-defined]
-            raise ClashingOptions("{leak} needs {supply}: the leakage moves the final level by I·R volts",
-                                  setting="leak")
+            raise ClashingOptions(
+                "{leak} needs {supply}: the leakage moves the final level by I·R volts", setting="leak"
+            )
         if self.leak is not None and kind not in ("delay", "period"):  # type: ignore[attr-defined]
             raise ClashingOptions("{leak} applies to {delay} and {period}", setting="leak")
         if self.limit is not None and self.is_given("window"):  # type: ignore[attr-defined]
             raise self._clash("limit", "window", "a limit is one-sided, a window two-sided")
         if self.threshold_tol is not None and kind not in ("delay", "period"):  # type: ignore[attr-defined]
-            raise ClashingOptions("{threshold_tol} belongs to {delay} or {period} (it spreads the threshold level)",
-                                  setting="threshold_tol")
+            raise ClashingOptions(
+                "{threshold_tol} belongs to {delay} or {period} (it spreads the threshold level)",
+                setting="threshold_tol",
+            )
         if self.r_tcr is not None and self.is_given("r_tech"):  # type: ignore[attr-defined]
             raise self._clash("r_tcr", "r_tech", "both set the resistor's TCR")
 
@@ -266,6 +272,7 @@ class Spec:
 
 
 # --- resolved parts ---------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class Parts:
@@ -343,18 +350,22 @@ class PartSettings:
             base = targets.for_cutoff(s.cutoff)
         elif kind == "delay":
             scale = s.supply
-            th = targets.level_fraction(s.threshold.value, is_volts=s.threshold.volts, scale_v=scale,
-                                        setting="threshold")
+            th = targets.level_fraction(
+                s.threshold.value, is_volts=s.threshold.volts, scale_v=scale, setting="threshold"
+            )
             start = None
             if s.from_level is not None:
-                start = targets.level_fraction(s.from_level.value, is_volts=s.from_level.volts, scale_v=scale,
-                                               setting="from_level")
+                start = targets.level_fraction(
+                    s.from_level.value, is_volts=s.from_level.volts, scale_v=scale, setting="from_level"
+                )
             base = targets.for_delay(s.delay, th, s.falling, start=start, scale_v=scale, leak_a=s.leak or 0.0)
         else:
             scale = s.supply
             low, high = s.thresholds
-            pair = tuple(targets.level_fraction(x.value, is_volts=x.volts, scale_v=scale, setting="thresholds")
-                         for x in (low, high))
+            pair = tuple(
+                targets.level_fraction(x.value, is_volts=x.volts, scale_v=scale, setting="thresholds")
+                for x in (low, high)
+            )
             base = targets.for_period(s.period, pair[0], pair[1], scale_v=scale, leak_a=s.leak or 0.0)
         if limit is not None:
             from dataclasses import replace
@@ -381,10 +392,13 @@ class PartSettings:
         s: Any = self
         if s.dielectric is not None:
             return s.dielectric, None
-        if target is not None and target.kind == "delay" and target.falling and (target.scale_v or 0) > BANK_VOLTS:
-            return "ELECTROLYTIC", (f"a bank discharging from {format_si(target.scale_v, 'V', 3)} is modelled as "
-                                    f"aluminium electrolytic (±20 %); give {{dielectric}} PP (film) or the bank's "
-                                    f"own tolerance with {{c_tol}}")
+        if target is not None and target.kind == "delay" and target.falling and target.scale_v is not None \
+                and target.scale_v > BANK_VOLTS:
+            return "ELECTROLYTIC", (
+                f"a bank discharging from {format_si(target.scale_v, 'V', 3)} is modelled as "
+                f"aluminium electrolytic (±20 %); give {{dielectric}} PP (film) or the bank's "
+                f"own tolerance with {{c_tol}}"
+            )
         return "X7R", None
 
     def models(self, target: targets.Target | None, r_series_name: str | None = None) -> Models:
@@ -402,14 +416,15 @@ class PartSettings:
         else:
             usual = series.get(r_series_name or "E24").tolerance
             r_band = (-usual, usual)
-        r_model = models.PartModel(r_band, r_drift, label=f"{_pct_text(r_band)}, {tech_label} {r_drift.text}",
-                                   name=r_name)
+        r_model = models.PartModel(
+            r_band, r_drift, label=f"{_pct_text(r_band)}, {tech_label} {r_drift.text}", name=r_name
+        )
         # capacitor
         code, chosen = self.dielectric_code(target)
         if chosen:
             warnings.append(chosen)
         diel = models.dielectric(code)
-        c_drift = diel.drift if s.c_tc is None else models.linear(*s.c_tc, rated_c=diel.drift.rated_c)
+        c_drift = diel.drift if s.c_tc is None else models.linear(s.c_tc[0], s.c_tc[1], rated_c=diel.drift.rated_c)
         c_band = s.c_tol if s.c_tol is not None else diel.tolerance
         loss = s.c_bias_loss or 0.0
         aging = (0.0, 0.0)
@@ -422,8 +437,14 @@ class PartSettings:
             label += f", bias loss {loss * 100:g} %"
         if s.c_age is not None:
             label += f", ageing {aging[0] * 100:+.2g}…{aging[1] * 100:+.2g} %"
-        c_model = models.PartModel(c_band, c_drift, aging, loss, label,
-                                   name=diel.code if s.c_tc is None else f"{diel.code}, custom coefficient")
+        c_model = models.PartModel(
+            c_band,
+            c_drift,
+            aging,
+            loss,
+            label,
+            name=diel.code if s.c_tc is None else f"{diel.code}, custom coefficient",
+        )
         if diel.poor_for_timing:
             warnings.append(diel.poor_for_timing)
         warnings += rated_range_warnings(diel, s.temp)
@@ -451,8 +472,10 @@ def rated_range_warnings(diel: models.Dielectric, temp_c: tuple[float, float], s
     rated = diel.drift.rated_c
     if rated and (temp_c[0] < rated[0] or temp_c[1] > rated[1]):
         where = "stocked " if stocked else ""
-        return [f"the temperature range {temp_c[0]:g}…{temp_c[1]:g} °C leaves {where}{diel.code}'s rated range "
-                f"{rated[0]:g}…{rated[1]:g} °C: the capacitor model is not valid there"]
+        return [
+            f"the temperature range {temp_c[0]:g}…{temp_c[1]:g} °C leaves {where}{diel.code}'s rated range "
+            f"{rated[0]:g}…{rated[1]:g} °C: the capacitor model is not valid there"
+        ]
     return []
 
 
@@ -463,9 +486,11 @@ def check_model_validity(model: models.PartModel, temp_c: tuple[float, float], w
         slope = model.drift.cold[1] if x < 0 else model.drift.hot[0]
         worst_t = worst * (1 + slope * x)
         if worst_t < VALID_SHARE:
-            raise BadValue(f"the {what} model ({model.label or model.name}) takes a part down to "
-                           f"{worst_t * 100:.0f} % of nominal at {x + models.ROOM_C:g} °C: outside where it is "
-                           f"valid; narrow {{temp}} or check {{c_age}}, {{c_bias_loss}} and the tolerances")
+            raise BadValue(
+                f"the {what} model ({model.label or model.name}) takes a part down to "
+                f"{worst_t * 100:.0f} % of nominal at {x + models.ROOM_C:g} °C: outside where it is "
+                f"valid; narrow {{temp}} or check {{c_age}}, {{c_bias_loss}} and the tolerances"
+            )
 
 
 def practical_range(kind: str, name: str) -> tuple[float, float]:
@@ -479,18 +504,22 @@ def practical_range(kind: str, name: str) -> tuple[float, float]:
     caps = table["capacitance"]
     code = name.split(",")[0].strip()
     if code in caps:
-        return tuple(caps[code])  # type: ignore[return-value]
+        return _pair(caps[code])
     try:
         diel = models.dielectric(code)
     except RcpickError:
         return (1e-12, 1.0)
     if diel.drift.shared and diel.label.startswith("class 1"):
-        return tuple(caps["class1"])  # type: ignore[return-value]
+        return _pair(caps["class1"])
     if diel.label.startswith("class 2"):
         wide = diel.drift.hot[1] * (diel.drift.rated_c[1] - models.ROOM_C) > 0.151 if diel.drift.rated_c else False
         narrow_code = code in ("X7R", "X8R")
-        return tuple(caps["class2"] if narrow_code or not wide else caps["class2_wide"])  # type: ignore[return-value]
+        return _pair(caps["class2"] if narrow_code or not wide else caps["class2_wide"])
     return (1e-12, 1.0)
+
+
+def _pair(values) -> tuple[float, float]:
+    return float(values[0]), float(values[1])
 
 
 def position_parts(spec: Any, letter: str, mdl: Models, stock: stocks.Stock | None, *, network: bool = False) -> Parts:
@@ -506,30 +535,43 @@ def position_parts(spec: Any, letter: str, mdl: Models, stock: stocks.Stock | No
             if spec.typed(name):
                 raise spec._clash(f"fix_{letter}", name, "a fixed value is not searched")
         by_value, lines = _stock_models(spec, stock, kind, [fix], model, mdl)
-        return Parts(combos.fixed(fix, kind), f"fixed at {format_si(fix, unit, 4, trim=True)}", model, by_value,
-                     lines, practical, (fix, fix))
+        return Parts(
+            combos.fixed(fix, kind),
+            f"fixed at {format_si(fix, unit, 4, trim=True)}",
+            model,
+            by_value,
+            lines,
+            practical,
+            (fix, fix),
+        )
     low = getattr(spec, f"{letter}_min")
     high = getattr(spec, f"{letter}_max")
     if high is None:
         general = 1e6 if letter == "r" else 10e-6
         high = min(general, practical[1]) if practical[1] >= low else general
     if low > high:
-        raise BadValue(f"{format_si(low, unit, trim=True)} is above {{{letter}_max}} "
-                       f"{format_si(high, unit, trim=True)}", setting=f"{letter}_min")
+        raise BadValue(
+            f"{format_si(low, unit, trim=True)} is above {{{letter}_max}} {format_si(high, unit, trim=True)}",
+            setting=f"{letter}_min",
+        )
     parts = getattr(spec, f"{letter}_parts")
     span = f"{format_si(low, unit, trim=True)}…{format_si(high, unit, trim=True)}"
     pairs = "singles" if parts == 1 else "singles and pairs"
     if stock is not None and stock.covers(kind):
         values = stock.values(kind, low, high, spec.ask(kind))
         if not values:
-            raise BadValue(f"{stock.path} has no usable {letter.upper()} row inside {span} "
-                           f"({{{letter}_min}}/{{{letter}_max}}) meeting what was asked of it", setting="stock")
+            raise BadValue(
+                f"{stock.path} has no usable {letter.upper()} row inside {span} "
+                f"({{{letter}_min}}/{{{letter}_max}}) meeting what was asked of it",
+                setting="stock",
+            )
         by_value, lines = _stock_models(spec, stock, kind, values, model, mdl)
         import numpy as np
 
         built = combos.build(np.array(values), kind, parts, low, high)
-        return Parts(built, f"{len(values)} stocked values {span}, {pairs}", model, by_value, lines, practical,
-                     (low, high))
+        return Parts(
+            built, f"{len(values)} stocked values {span}, {pairs}", model, by_value, lines, practical, (low, high)
+        )
     chosen = series.get(getattr(spec, f"{letter}_series"))
     values_in = chosen.values(low, high)
     if len(values_in) == 0:
@@ -538,8 +580,9 @@ def position_parts(spec: Any, letter: str, mdl: Models, stock: stocks.Stock | No
     return Parts(built, f"{chosen.name} {span}, {pairs}", model, {}, {}, practical, (low, high))
 
 
-def _stock_models(spec: Any, stock: stocks.Stock | None, kind: str, values, model: models.PartModel,
-                  mdl: Models) -> tuple[dict, dict]:
+def _stock_models(
+    spec: Any, stock: stocks.Stock | None, kind: str, values, model: models.PartModel, mdl: Models
+) -> tuple[dict, dict]:
     if stock is None or not stock.covers(kind):
         return {}, {}
     by_value, lines = {}, {}
@@ -576,10 +619,36 @@ def load_stock(path: str | None) -> stocks.Stock | None:
 
 # --- the specs ---------------------------------------------------------------------
 
-TARGET_NAMES = ("tau", "cutoff", "delay", "period", "threshold", "from_level", "thresholds", "supply", "falling",
-                "leak", "limit")
-MODEL_NAMES = ("r_tol", "r_tcr", "r_tech", "c_tol", "dielectric", "c_tc", "c_bias_loss", "c_age", "temp", "window",
-               "threshold_tol", "dist", "samples", "seed", "lot_share")
+TARGET_NAMES = (
+    "tau",
+    "cutoff",
+    "delay",
+    "period",
+    "threshold",
+    "from_level",
+    "thresholds",
+    "supply",
+    "falling",
+    "leak",
+    "limit",
+)
+MODEL_NAMES = (
+    "r_tol",
+    "r_tcr",
+    "r_tech",
+    "c_tol",
+    "dielectric",
+    "c_tc",
+    "c_bias_loss",
+    "c_age",
+    "temp",
+    "window",
+    "threshold_tol",
+    "dist",
+    "samples",
+    "seed",
+    "lot_share",
+)
 STRESS_NAMES = ("r_power", "r_voltage", "c_voltage", "derate")
 
 
@@ -657,7 +726,7 @@ class FindSpec(PartSettings, Spec):
             if self.vary is None:
                 raise ClashingOptions("{net} needs {vary} (the elements to search, e.g. R1,C1)", setting="net")
 
-    def plan(self) -> "Plan":
+    def plan(self) -> Plan:
         """Resolve the target, models, stock and candidate sets of a plain (not network) search.
 
         A partial request (``rcpick config`` without a target) resolves everything but the target.
@@ -668,8 +737,15 @@ class FindSpec(PartSettings, Spec):
             if target is None:
                 mdl = self.models(None, self.r_series)
                 stock = load_stock(self.stock)
-                return Plan(None, position_parts(self, "r", mdl, stock), position_parts(self, "c", mdl, stock),
-                            self.conditions(network=self.net is not None), mdl, list(mdl.warnings), stock)
+                return Plan(
+                    None,
+                    position_parts(self, "r", mdl, stock),
+                    position_parts(self, "c", mdl, stock),
+                    self.conditions(network=self.net is not None),
+                    mdl,
+                    list(mdl.warnings),
+                    stock,
+                )
             mdl = self.models(target, self.r_series)
             stock = load_stock(self.stock)
             r = position_parts(self, "r", mdl, stock)
@@ -753,8 +829,9 @@ class SpreadSpec(PartSettings, Spec):
         if kind is None:
             for name in ("window", "limit"):
                 if self.is_given(name):
-                    raise ClashingOptions(f"{{{name}}} needs a target ({{tau}}, {{cutoff}}, {{delay}} or {{period}})",
-                                          setting=name)
+                    raise ClashingOptions(
+                        f"{{{name}}} needs a target ({{tau}}, {{cutoff}}, {{delay}} or {{period}})", setting=name
+                    )
 
 
 @dataclass(frozen=True)
@@ -771,5 +848,3 @@ class NetworkSpec(Spec):
             raise ClashingOptions("{file} is required: the netlist to analyse", setting="file")
         if self.threshold is not None and self.node is None:
             raise ClashingOptions("{threshold} needs {node} (the node whose crossing is timed)", setting="threshold")
-
-

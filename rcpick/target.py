@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -115,7 +116,8 @@ class Target:
                 ratio = (final - self.start_level) / (final - np.asarray(th))
                 return np.where(ratio > 1.0, np.log(np.where(ratio > 1.0, ratio, 2.0)), np.nan)
             assert self.thresholds is not None
-            low, high = self.thresholds
+            low: Any = self.thresholds[0]
+            high: Any = self.thresholds[1]
             if deviation is not None:
                 low, high = low * (1.0 + np.asarray(deviation[0])), high * (1.0 + np.asarray(deviation[1]))
             charge = ((1.0 - leak) - low) / ((1.0 - leak) - np.asarray(high))
@@ -156,8 +158,11 @@ class Target:
     @property
     def tau_s(self) -> float | None:
         """The time constant that meets the target exactly; None when leakage makes it depend on R."""
-        if self.leak_a or (self.kind == "delay" and self.threshold is None) or \
-                (self.kind == "period" and self.thresholds is None):
+        if (
+            self.leak_a
+            or (self.kind == "delay" and self.threshold is None)
+            or (self.kind == "period" and self.thresholds is None)
+        ):
             return None  # leakage, or a level defined by a network node rather than by a fraction of the step
         return self.tau_of(self.value)
 
@@ -221,16 +226,24 @@ def for_cutoff(frequency_hz: float) -> Target:
     return Target("cutoff", frequency_hz, "Hz")
 
 
-def for_delay(delay_s: float, threshold: float, falling: bool = False, *, start: float | None = None,
-              scale_v: float | None = None, leak_a: float = 0.0) -> Target:
+def for_delay(
+    delay_s: float,
+    threshold: float,
+    falling: bool = False,
+    *,
+    start: float | None = None,
+    scale_v: float | None = None,
+    leak_a: float = 0.0,
+) -> Target:
     """A delay target: time from the start level (0, or 1 when falling) to ``threshold`` (fractions of the scale)."""
     target = Target("delay", delay_s, "s", threshold, start, falling, scale_v=scale_v, leak_a=leak_a)
     check_levels(target)
     return target
 
 
-def for_period(period_s: float, low: float, high: float, *, scale_v: float | None = None,
-               leak_a: float = 0.0) -> Target:
+def for_period(
+    period_s: float, low: float, high: float, *, scale_v: float | None = None, leak_a: float = 0.0
+) -> Target:
     """An RC relaxation oscillator's period: charging from ``low`` to ``high`` towards the supply,
     discharging from ``high`` to ``low`` towards 0 through the same R (fractions of the supply)."""
     target = Target("period", period_s, "s", thresholds=(low, high), scale_v=scale_v, leak_a=leak_a)
@@ -245,23 +258,35 @@ def check_levels(target: Target) -> None:
         assert th is not None
         if target.falling:
             if not 0.0 < th < start:
-                raise BadValue(f"a falling node must start above its threshold and the threshold lie above 0 "
-                               f"(start {start:.4g}, threshold {th:.4g} of the scale)", setting="threshold")
+                raise BadValue(
+                    f"a falling node must start above its threshold and the threshold lie above 0 "
+                    f"(start {start:.4g}, threshold {th:.4g} of the scale)",
+                    setting="threshold",
+                )
         elif not (start < th < 1.0):
-            what = "below the supply" if target.scale_v is not None else "strictly between 0 and 1 (0 % and 100 %) of the step"
+            what = (
+                "below the supply"
+                if target.scale_v is not None
+                else "strictly between 0 and 1 (0 % and 100 %) of the step"
+            )
             if th >= 1.0:
                 raise BadValue(f"threshold {th:.4g} must lie {what}", setting="threshold")
-            raise BadValue(f"a rising node must start below its threshold (start {start:.4g}, threshold {th:.4g} "
-                           f"of the scale)", setting="from_level")
+            raise BadValue(
+                f"a rising node must start below its threshold (start {start:.4g}, threshold {th:.4g} of the scale)",
+                setting="from_level",
+            )
         if not th > 0.0:
-            raise BadValue(f"threshold must lie strictly between 0 and 1 (or 0 % and 100 %), got {th:g}",
-                           setting="threshold")
+            raise BadValue(
+                f"threshold must lie strictly between 0 and 1 (or 0 % and 100 %), got {th:g}", setting="threshold"
+            )
     elif target.kind == "period":
         assert target.thresholds is not None
         low, high = target.thresholds
         if not 0.0 < low < high < 1.0:
-            raise BadValue(f"the thresholds must satisfy 0 < low < high < supply, got {low:.4g} and {high:.4g} "
-                           f"of the supply", setting="thresholds")
+            raise BadValue(
+                f"the thresholds must satisfy 0 < low < high < supply, got {low:.4g} and {high:.4g} of the supply",
+                setting="thresholds",
+            )
 
 
 def delay_factor(threshold: float, falling: bool) -> float:
@@ -274,6 +299,7 @@ def level_fraction(level: float, *, is_volts: bool, scale_v: float | None, setti
     if not is_volts:
         return level
     if scale_v is None:
-        raise BadValue("a level in volts needs {supply} (the step's final value, or the start value when "
-                       "falling)", setting=setting)
+        raise BadValue(
+            "a level in volts needs {supply} (the step's final value, or the start value when falling)", setting=setting
+        )
     return level / scale_v

@@ -52,6 +52,7 @@ SOURCES = ("R tolerance", "R temperature", "C tolerance", "C temperature", "bias
 
 # --- designs ----------------------------------------------------------------------
 
+
 @dataclass(frozen=True)
 class Position:
     """One position (R or C) of M designs: up to two parts each.
@@ -75,7 +76,7 @@ class Position:
     _cache: dict = field(default_factory=dict, compare=False, repr=False)
 
     @classmethod
-    def of(cls, kind: str, parts: list[list[float]], wiring, models: list[list[PartModel]] | PartModel) -> "Position":
+    def of(cls, kind: str, parts: list[list[float]], wiring, models: list[list[PartModel]] | PartModel) -> Position:
         """Build from part lists (one or two values per design) and one model or a model per part."""
         arr = np.zeros((len(parts), 2))
         for m, values in enumerate(parts):
@@ -87,7 +88,7 @@ class Position:
     def __len__(self) -> int:
         return len(self.wiring)
 
-    def take(self, rows) -> "Position":
+    def take(self, rows) -> Position:
         rows = np.asarray(rows, dtype=np.intp)
         return Position(self.kind, self.parts[rows], self.wiring[rows], [self.models[i] for i in rows])
 
@@ -99,8 +100,13 @@ class Position:
     def same_lot(self) -> np.ndarray:
         """Per design: whether its two parts are one value of one model (one reel)."""
         if "lot" not in self._cache:
-            self._cache["lot"] = np.array([w != SINGLE and p[0] == p[1] and m[0] == m[1]
-                                           for w, p, m in zip(self.wiring, self.parts, self.models)], dtype=bool)
+            self._cache["lot"] = np.array(
+                [
+                    w != SINGLE and p[0] == p[1] and m[0] == m[1]
+                    for w, p, m in zip(self.wiring, self.parts, self.models)
+                ],
+                dtype=bool,
+            )
         return self._cache["lot"]
 
     def params(self, name: str) -> np.ndarray:
@@ -110,21 +116,27 @@ class Position:
             self._cache[key] = np.array([[_param(model, name) for model in row] for row in self.models], dtype=float)
         return self._cache[key]
 
-    def restrict(self, source: str) -> "Position":
+    def restrict(self, source: str) -> Position:
         """The same designs with every spread source but ``source`` removed from every part."""
         return Position(self.kind, self.parts, self.wiring, [[m.only(source) for m in row] for row in self.models])
 
 
 def _param(model: PartModel, name: str):
-    return {"tolerance": model.tolerance, "cold": model.drift.cold, "hot": model.drift.hot,
-            "aging": model.aging, "loss": model.loss}[name]
+    return {
+        "tolerance": model.tolerance,
+        "cold": model.drift.cold,
+        "hot": model.drift.hot,
+        "aging": model.aging,
+        "loss": model.loss,
+    }[name]
 
 
 def combine(a: np.ndarray, b: np.ndarray, wiring, kind: str) -> np.ndarray:
     """Effective value of parts a and b (b ignored for a single part), broadcasting ``wiring``."""
     with np.errstate(invalid="ignore", divide="ignore"):
-        return np.where(wiring == SERIES, series_value(a, b, kind),
-                        np.where(wiring == PARALLEL, parallel_value(a, b, kind), a))
+        return np.where(
+            wiring == SERIES, series_value(a, b, kind), np.where(wiring == PARALLEL, parallel_value(a, b, kind), a)
+        )
 
 
 @dataclass(frozen=True)
@@ -176,16 +188,25 @@ def check_level_band(target: Target, band: tuple[float, float]) -> None:
 
     if band == (0.0, 0.0) or target.kind not in ("delay", "period"):
         return
-    study = Study(Position.of("resistance", [[1.0]], [SINGLE], PartModel((0.0, 0.0))),
-                  Position.of("capacitance", [[1.0]], [SINGLE], PartModel((0.0, 0.0))), (25.0, 25.0), target, band)
+    study = Study(
+        Position.of("resistance", [[1.0]], [SINGLE], PartModel((0.0, 0.0))),
+        Position.of("capacitance", [[1.0]], [SINGLE], PartModel((0.0, 0.0))),
+        (25.0, 25.0),
+        target,
+        band,
+    )
     for corner in study.level_corners():
         factor = target.per_tau(None if not target.leak_a else np.array([0.0]), corner)
         if not np.all(np.isfinite(factor)):
-            raise BadValue(f"the threshold spread by {band[0]:+.1%}…{band[1]:+.1%} leaves the levels the node passes "
-                           f"between; narrow it", setting="threshold_tol")
+            raise BadValue(
+                f"the threshold spread by {band[0]:+.1%}…{band[1]:+.1%} leaves the levels the node passes "
+                f"between; narrow it",
+                setting="threshold_tol",
+            )
 
 
 # --- one part --------------------------------------------------------------------
+
 
 def relative_factor(model: PartModel, chunk: Chunk, stream: str, lot: str | None, x: np.ndarray) -> np.ndarray:
     """Units' values of one part relative to nominal at temperature offsets ``x`` (°C from 25), shape (T, n).
@@ -193,6 +214,7 @@ def relative_factor(model: PartModel, chunk: Chunk, stream: str, lot: str | None
     v/v₀ = (1 + δ)·(1 + a)·(1 − ℓ)·max(1 + s_cold·min(x, 0) + s_hot·max(x, 0), FLOOR), each of δ, a
     and the slopes drawn within its band (docs/model.md). Only the fields the model spreads are drawn.
     """
+
     def drawn(band: tuple[float, float], name: str) -> np.ndarray | float:
         mid, half = (band[0] + band[1]) / 2, (band[1] - band[0]) / 2
         return mid + half * chunk.band(stream, name, lot) if half else mid
@@ -215,7 +237,9 @@ def relative_factor(model: PartModel, chunk: Chunk, stream: str, lot: str | None
     return factor
 
 
-def _position_values(pos: Position, rows: np.ndarray, chunk: Chunk, slots: tuple[str, str], x: np.ndarray) -> np.ndarray:
+def _position_values(
+    pos: Position, rows: np.ndarray, chunk: Chunk, slots: tuple[str, str], x: np.ndarray
+) -> np.ndarray:
     """Effective values, shape (len(rows), T, n), of designs ``rows`` (all wired alike)."""
     wiring = int(pos.wiring[rows[0]])
     lot = pos.same_lot[rows]
@@ -241,6 +265,7 @@ def _position_values(pos: Position, rows: np.ndarray, chunk: Chunk, slots: tuple
 
 # --- worst case -------------------------------------------------------------------
 
+
 def _sides(temp_c: tuple[float, float]) -> list[tuple[float, float]]:
     """The range split at 25 °C, as offsets x = T − 25 (each side has one sign of x)."""
     lo, hi = temp_c[0] - ROOM_C, temp_c[1] - ROOM_C
@@ -263,16 +288,29 @@ def limit_factor(tol, age, loss, cold, hot, x, upper: bool):
 def model_limit_factor(model: PartModel, x, upper: bool):
     """:func:`limit_factor` of one part model at offsets x."""
     arr = np.asarray
-    return limit_factor(arr(model.tolerance), arr(model.aging), model.loss, arr(model.drift.cold),
-                        arr(model.drift.hot), np.asarray(x, dtype=float), upper)
+    return limit_factor(
+        arr(model.tolerance),
+        arr(model.aging),
+        model.loss,
+        arr(model.drift.cold),
+        arr(model.drift.hot),
+        np.asarray(x, dtype=float),
+        upper,
+    )
 
 
 def _extreme_values(pos: Position, x: np.ndarray, upper: bool) -> np.ndarray:
     """Effective value with every part at its upper (or lower) limit at offsets x (shape (M, P))."""
     xb = x[:, None, :]  # (M, 1, P) against parts (M, 2, 1)
-    factor = limit_factor(pos.params("tolerance")[..., None, :], pos.params("aging")[..., None, :],
-                          pos.params("loss")[..., None], pos.params("cold")[..., None, :],
-                          pos.params("hot")[..., None, :], xb, upper)
+    factor = limit_factor(
+        pos.params("tolerance")[..., None, :],
+        pos.params("aging")[..., None, :],
+        pos.params("loss")[..., None],
+        pos.params("cold")[..., None, :],
+        pos.params("hot")[..., None, :],
+        xb,
+        upper,
+    )
     parts = pos.parts[..., None] * factor
     return combine(parts[:, 0], parts[:, 1], pos.wiring[:, None], pos.kind)
 
@@ -291,8 +329,13 @@ def _quantity_extreme(study: Study, x: np.ndarray, upper: bool) -> np.ndarray:
     return stacked.max(axis=0) if upper else stacked.min(axis=0)
 
 
-def extremes_over_temperature(func: Callable[[np.ndarray, bool], np.ndarray], m: int, temp_c: tuple[float, float],
-                              grid: int = 9, iterations: int = 48) -> tuple[np.ndarray, np.ndarray]:
+def extremes_over_temperature(
+    func: Callable[[np.ndarray, bool], np.ndarray],
+    m: int,
+    temp_c: tuple[float, float],
+    grid: int = 9,
+    iterations: int = 48,
+) -> tuple[np.ndarray, np.ndarray]:
     """Per design, min of ``func(x, False)`` and max of ``func(x, True)`` over the temperature range.
 
     ``func(x, upper)`` takes offsets x (°C from 25) of shape (M, P) and returns values (M, P). On each
@@ -341,10 +384,16 @@ def contributions(study: Study) -> list[dict[str, float]]:
     weights = {}
     for source in SOURCES:
         if source == "threshold":
-            sub = Study(study.r.restrict("none"), study.c.restrict("none"), study.temp_c, study.target, study.level_band)
+            sub = Study(
+                study.r.restrict("none"), study.c.restrict("none"), study.temp_c, study.target, study.level_band
+            )
         else:
-            sub = Study(study.r.restrict(only_r.get(source, "none")), study.c.restrict(only_c.get(source, "none")),
-                        study.temp_c, study.target)
+            sub = Study(
+                study.r.restrict(only_r.get(source, "none")),
+                study.c.restrict(only_c.get(source, "none")),
+                study.temp_c,
+                study.target,
+            )
         lo, hi = worst_case(sub)
         with np.errstate(divide="ignore", invalid="ignore"):
             weights[source] = np.log(np.maximum(hi, nominal)) - np.log(np.minimum(lo, nominal))
@@ -358,6 +407,7 @@ def contributions(study: Study) -> list[dict[str, float]]:
 
 
 # --- Monte Carlo -------------------------------------------------------------------
+
 
 def temperature_grid(temp_c: tuple[float, float], per_side: int = 1) -> np.ndarray:
     """Temperatures checked per unit, °C: the range ends, 25 °C when inside, and ``per_side`` points between."""
@@ -381,14 +431,14 @@ def wilson_interval(passed, samples: int, z: float = Z95) -> tuple[np.ndarray, n
 class MonteCarlo:
     """Monte Carlo results per design (arrays of shape (M,), target's unit)."""
 
-    p_low: np.ndarray      # 0.135 % point of each unit's minimum over the temperature range
-    p_median: np.ndarray   # median of the units' values at the reference temperature
-    p_high: np.ndarray     # 99.865 % point of each unit's maximum over the temperature range
-    sigma: np.ndarray      # standard deviation of the units' values at the reference temperature
+    p_low: np.ndarray  # 0.135 % point of each unit's minimum over the temperature range
+    p_median: np.ndarray  # median of the units' values at the reference temperature
+    p_high: np.ndarray  # 99.865 % point of each unit's maximum over the temperature range
+    sigma: np.ndarray  # standard deviation of the units' values at the reference temperature
     yield_: np.ndarray | None  # share of units inside the window at every checked temperature
-    yield_low: np.ndarray | None   # Wilson 95 % interval of the yield
+    yield_low: np.ndarray | None  # Wilson 95 % interval of the yield
     yield_high: np.ndarray | None
-    never: np.ndarray      # units that never reach the level (delays and periods)
+    never: np.ndarray  # units that never reach the level (delays and periods)
     samples: int
     temperatures_c: np.ndarray
     reference_c: float
@@ -396,21 +446,28 @@ class MonteCarlo:
     evaluations: int = 0
 
 
-def unit_summary(lows: np.ndarray, highs: np.ndarray, refs: np.ndarray,
-                 window: tuple[float, float] | None) -> dict[str, np.ndarray]:
+def unit_summary(
+    lows: np.ndarray, highs: np.ndarray, refs: np.ndarray, window: tuple[float, float] | None
+) -> dict[str, np.ndarray]:
     """Per design (rows): percentiles, σ, passing and never-reaching counts of per-unit results.
 
     ``lows``/``highs`` are each unit's minimum and maximum over the checked temperatures, ``refs`` its value
     at the reference temperature; a level never reached is +inf.
     """
-    out = {"p_low": np.quantile(lows, P_LOW, axis=1), "p_high": np.quantile(highs, P_HIGH, axis=1),
-           "p_median": np.median(refs, axis=1)}
+    out = {
+        "p_low": np.quantile(lows, P_LOW, axis=1),
+        "p_high": np.quantile(highs, P_HIGH, axis=1),
+        "p_median": np.median(refs, axis=1),
+    }
     finite = np.isfinite(refs).all(axis=1)
     with np.errstate(invalid="ignore"):
         out["sigma"] = np.where(finite, np.std(np.where(np.isfinite(refs), refs, 0.0), axis=1, ddof=1), np.inf)
     out["never"] = np.sum(~np.isfinite(highs), axis=1).astype(float)
-    out["passed"] = (np.sum((lows >= window[0]) & (highs <= window[1]), axis=1).astype(float)
-                     if window is not None else np.zeros(len(lows)))
+    out["passed"] = (
+        np.sum((lows >= window[0]) & (highs <= window[1]), axis=1).astype(float)
+        if window is not None
+        else np.zeros(len(lows))
+    )
     return out
 
 
@@ -425,10 +482,10 @@ def _groups(study: Study, samples: int) -> Iterator[np.ndarray]:
 def _batches(study: Study, rows: np.ndarray) -> list[np.ndarray]:
     """``rows`` in batches of at most :data:`BATCH`, each batch wired alike (R and C)."""
     key = study.r.wiring[rows].astype(int) * 3 + study.c.wiring[rows].astype(int)
-    out = []
+    out: list[np.ndarray] = []
     for value in np.unique(key):
         same = rows[key == value]
-        out.extend(same[i:i + BATCH] for i in range(0, len(same), BATCH))
+        out.extend(same[i : i + BATCH] for i in range(0, len(same), BATCH))
     return out
 
 
@@ -494,10 +551,10 @@ def monte_carlo(
                 q = laws.target.quantity(r, c, deviation)
                 q = np.where(np.isnan(q), np.inf, q)
                 at = [place[int(row)] for row in rows]
-                lows[at, start:start + n] = q.min(axis=1)
-                highs[at, start:start + n] = q.max(axis=1)
-                refs[at, start:start + n] = q[:, ref_index, :]
-                if counts is not None and rows[0] == 0:
+                lows[at, start : start + n] = q.min(axis=1)
+                highs[at, start : start + n] = q.max(axis=1)
+                refs[at, start : start + n] = q[:, ref_index, :]
+                if counts is not None and edges is not None and rows[0] == 0:
                     counts += np.histogram(np.clip(q[0], edges[0], edges[-1]), edges)[0]
                 if progress is not None:
                     progress(sum(len(members[int(k)]) for k in rows) * n * len(temps))
@@ -515,9 +572,21 @@ def monte_carlo(
     if window is not None:
         yield_ = out["passed"] / samples
         low, high = wilson_interval(out["passed"], samples)
-    return MonteCarlo(out["p_low"], out["p_median"], out["p_high"], out["sigma"], yield_, low, high,
-                      out["never"].astype(int), samples, temps, float(temps[ref_index]),
-                      (counts, edges) if counts is not None and edges is not None else None, m * samples * len(temps))
+    return MonteCarlo(
+        out["p_low"],
+        out["p_median"],
+        out["p_high"],
+        out["sigma"],
+        yield_,
+        low,
+        high,
+        out["never"].astype(int),
+        samples,
+        temps,
+        float(temps[ref_index]),
+        (counts, edges) if counts is not None and edges is not None else None,
+        m * samples * len(temps),
+    )
 
 
 def same_laws(study: Study) -> tuple[np.ndarray, np.ndarray]:

@@ -8,7 +8,6 @@ from typer.testing import CliRunner
 
 from rcpick.cli import app
 
-
 ROOT = Path(__file__).resolve().parents[1]
 
 

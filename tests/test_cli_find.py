@@ -18,8 +18,15 @@ def test_tau_table(run):
 def test_json_schema(run_json):
     doc = run_json("find", "--tau", "4.7ms", "--top", "5", "--rank", "error")
     window = doc["target"].pop("window")
-    assert doc["target"] == {"kind": "tau", "value": 4.7e-3, "unit": "s", "tau_s": 4.7e-3, "supply_v": None,
-                             "leak_a": None, "limit": None}
+    assert doc["target"] == {
+        "kind": "tau",
+        "value": 4.7e-3,
+        "unit": "s",
+        "tau_s": 4.7e-3,
+        "supply_v": None,
+        "leak_a": None,
+        "limit": None,
+    }
     assert window["low"] == pytest.approx(4.7e-3 * 0.9) and window["high"] == pytest.approx(4.7e-3 * 1.1)
     assert doc["searched"]["r_combinations"] > 1000 and doc["searched"]["c_combinations"] > 1000
     assert [c["rank"] for c in doc["candidates"]] == [1, 2, 3, 4, 5]
@@ -39,7 +46,9 @@ def test_json_schema(run_json):
 
 def test_kuphaldt_delay_picks_10k(run_json):
     # Kuphaldt, Lessons in Electric Circuits Vol. I ch. 16: 15 V, 10 kΩ, 100 µF reaches 12.970 V at 2 s.
-    doc = run_json("find", "--delay", "2s", "--threshold", "12.970V", "--supply", "15V", "--fix-c", "100u", "--rank", "error")
+    doc = run_json(
+        "find", "--delay", "2s", "--threshold", "12.970V", "--supply", "15V", "--fix-c", "100u", "--rank", "error"
+    )
     best = doc["candidates"][0]
     assert best["r"]["ohm"] == 10e3 and best["r"]["arrangement"] == "single"
     assert abs(best["error"]) < 2e-4
@@ -48,8 +57,20 @@ def test_kuphaldt_delay_picks_10k(run_json):
 
 def test_openstax_falling_delay_picks_1k(run_json):
     # OpenStax CP2e §21.6: 1.00 kΩ, 8.00 µF, 10.0 kV falls to 498 V in 24.0 ms.
-    doc = run_json("find", "--delay", "24ms", "--threshold", "498V", "--supply", "10kV", "--falling", "--fix-c", "8u",
-                   "--rank", "error")
+    doc = run_json(
+        "find",
+        "--delay",
+        "24ms",
+        "--threshold",
+        "498V",
+        "--supply",
+        "10kV",
+        "--falling",
+        "--fix-c",
+        "8u",
+        "--rank",
+        "error",
+    )
     assert doc["candidates"][0]["r"]["ohm"] == 1e3
     assert doc["target"]["falling"] is True
 
@@ -57,8 +78,12 @@ def test_openstax_falling_delay_picks_1k(run_json):
 def test_cutoff_and_percent_threshold(run_json):
     doc = run_json("find", "--cutoff", "159.155Hz", "--fix-r", "10k", "--top", "1", "--rank", "error")
     assert doc["candidates"][0]["c"]["farad"] == 100e-9  # 10 kΩ, 100 nF → 159.155 Hz
-    pct = run_json("find", "--delay", "1ms", "--threshold", "63.212%", "--fix-r", "10k", "--top", "1", "--rank", "error")
-    frac = run_json("find", "--delay", "1ms", "--threshold", "0.63212", "--fix-r", "10k", "--top", "1", "--rank", "error")
+    pct = run_json(
+        "find", "--delay", "1ms", "--threshold", "63.212%", "--fix-r", "10k", "--top", "1", "--rank", "error"
+    )
+    frac = run_json(
+        "find", "--delay", "1ms", "--threshold", "0.63212", "--fix-r", "10k", "--top", "1", "--rank", "error"
+    )
     assert pct["candidates"] == frac["candidates"]
     assert pct["candidates"][0]["c"]["farad"] == 100e-9
 
@@ -79,8 +104,23 @@ def test_csv_reads_back(run):
     assert result.exit_code == 0
     rows = list(csv.DictReader(io.StringIO(result.stdout)))
     assert len(rows) == 4
-    assert {"rank", "r_wiring", "r_ohm", "c_wiring", "c_farad", "tau_s", "cutoff_hz", "error", "parts",
-            "worst_min_hz", "worst_max_hz", "p_low_hz", "p_median_hz", "p_high_hz", "yield"} <= set(rows[0])
+    assert {
+        "rank",
+        "r_wiring",
+        "r_ohm",
+        "c_wiring",
+        "c_farad",
+        "tau_s",
+        "cutoff_hz",
+        "error",
+        "parts",
+        "worst_min_hz",
+        "worst_max_hz",
+        "p_low_hz",
+        "p_median_hz",
+        "p_high_hz",
+        "yield",
+    } <= set(rows[0])
     for row in rows:
         assert float(row["tau_s"]) == pytest.approx(float(row["r_ohm"]) * float(row["c_farad"]))
 
@@ -96,7 +136,11 @@ BAD = {
     "inf": (["--tau", "1e999"], "--tau", "finite"),
     "min above max": (["--tau", "1ms", "--c-min", "1u", "--c-max", "1n"], "--c-min", "above --c-max"),
     "threshold outside (0, 1)": (["--delay", "1ms", "--threshold", "1.5"], "--threshold", "between 0 and 1"),
-    "threshold at supply": (["--delay", "1ms", "--threshold", "5V", "--supply", "5V"], "--threshold", "below the supply"),
+    "threshold at supply": (
+        ["--delay", "1ms", "--threshold", "5V", "--supply", "5V"],
+        "--threshold",
+        "below the supply",
+    ),
     "no target": (["--r-series", "E96"], "target", "got none"),
     "two targets": (["--tau", "1ms", "--cutoff", "1kHz"], "--tau and --cutoff", "exactly one"),
     "fix with parts": (["--tau", "1ms", "--fix-r", "10k", "--r-parts", "1"], "--fix-r and --r-parts", "together"),

@@ -4,25 +4,56 @@ import pytest
 
 
 def test_spread_table(run):
-    result = run("spread", "--r", "4k7+330", "--c", "47n//47n", "--tau", "480us", "--dielectric", "C0G", "--temp", "-40:85")
+    result = run(
+        "spread", "--r", "4k7+330", "--c", "47n//47n", "--tau", "480us", "--dielectric", "C0G", "--temp", "-40:85"
+    )
     assert result.exit_code == 0, result.output
     out = result.stdout
-    for text in ("worst-case min", "MC 99.865 %", "yield", "Contributions", "R tolerance", "◄ window low", "◄ worst-case max",
-                 "4K7 + 330R", "47n ∥ 47n"):
+    for text in (
+        "worst-case min",
+        "MC 99.865 %",
+        "yield",
+        "Contributions",
+        "R tolerance",
+        "◄ window low",
+        "◄ worst-case max",
+        "4K7 + 330R",
+        "47n ∥ 47n",
+    ):
         assert text in out, text
 
 
 def test_spread_json_without_target(run_json):
-    doc = run_json("spread", "--r", "10k", "--c", "100n", "--dielectric", "C0G", "--r-tcr", "100ppm", "--r-tol", "1%",
-                   "--temp", "-40:85")
+    doc = run_json(
+        "spread",
+        "--r",
+        "10k",
+        "--c",
+        "100n",
+        "--dielectric",
+        "C0G",
+        "--r-tcr",
+        "100ppm",
+        "--r-tol",
+        "1%",
+        "--temp",
+        "-40:85",
+    )
     assert doc["unit"] == "s" and doc["quantity"] == "tau" and doc["target"] is None
     assert doc["nominal"] == pytest.approx(1e-3)
     sp = doc["spread"]
     assert sp["yield"] is None
     # the exact worst case of the example (RIAC extreme-value definition)
     assert sp["worst_max"] == pytest.approx(1e-3 * 1.01 * 1.05 * (1 + 100e-6 * 65) * (1 + 30e-6 * 65), rel=1e-12)
-    assert set(doc["contributions"]) == {"R tolerance", "R temperature", "C tolerance", "C temperature", "bias loss",
-                                         "ageing", "threshold"}
+    assert set(doc["contributions"]) == {
+        "R tolerance",
+        "R temperature",
+        "C tolerance",
+        "C temperature",
+        "bias loss",
+        "ageing",
+        "threshold",
+    }
     assert sum(doc["contributions"].values()) == pytest.approx(1.0)
     assert sum(doc["histogram"]["counts"]) == 20000 * len(doc["temperatures_c"])
 
@@ -46,7 +77,7 @@ def test_find_ranks_by_yield_by_default(run_json):
     # documented rule: no row ranks above a row with fewer parts unless its yield interval lies wholly above
     cands = doc["candidates"]
     for i, upper in enumerate(cands):
-        for lower in cands[i + 1:]:
+        for lower in cands[i + 1 :]:
             if upper["parts"] > lower["parts"]:
                 assert upper["spread"]["yield_ci"][0] > lower["spread"]["yield_ci"][1]
     assert doc["analysis"]["pool"]["capped"] is True
@@ -77,8 +108,23 @@ def test_warnings_in_output(run):
 
 
 def test_threshold_tol_widens_the_delay(run_json):
-    base = ["spread", "--r", "10k", "--c", "1u", "--delay", "7ms", "--threshold", "2.0V", "--supply", "3.3V",
-            "--dielectric", "C0G", "--temp", "25"]
+    base = [
+        "spread",
+        "--r",
+        "10k",
+        "--c",
+        "1u",
+        "--delay",
+        "7ms",
+        "--threshold",
+        "2.0V",
+        "--supply",
+        "3.3V",
+        "--dielectric",
+        "C0G",
+        "--temp",
+        "25",
+    ]
     plain = run_json(*base)
     wide = run_json(*base, "--threshold-tol", "5%")
     assert wide["spread"]["worst_max"] > plain["spread"]["worst_max"]

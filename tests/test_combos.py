@@ -39,8 +39,12 @@ def test_wiring_names_describe_wiring():
 def test_pair_formulas_symmetric_and_bounded(a, b, kind):
     for rule in (series_value, parallel_value):
         assert float(rule(np.array(a), np.array(b), kind)) == pytest.approx(float(rule(np.array(b), np.array(a), kind)))
-    low = min(float(series_value(np.array(a), np.array(b), kind)), float(parallel_value(np.array(a), np.array(b), kind)))
-    high = max(float(series_value(np.array(a), np.array(b), kind)), float(parallel_value(np.array(a), np.array(b), kind)))
+    low = min(
+        float(series_value(np.array(a), np.array(b), kind)), float(parallel_value(np.array(a), np.array(b), kind))
+    )
+    high = max(
+        float(series_value(np.array(a), np.array(b), kind)), float(parallel_value(np.array(a), np.array(b), kind))
+    )
     # the adding wiring exceeds both parts; the other lies below both
     assert high >= max(a, b) * (1 - 1e-12)
     assert low <= min(a, b) * (1 + 1e-12)

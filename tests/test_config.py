@@ -51,22 +51,25 @@ def test_explicit_config_file_and_relative_stock(run_json, tmp_path, monkeypatch
     assert {v for c in doc["candidates"] for v in c["r"]["parts_ohm"]} <= {10e3, 4.7e3}
 
 
-@pytest.mark.parametrize(("text", "fragment"), [
-    ('tmp = "0:70"\n', "unknown key 'tmp'; valid keys: supply limit r-series"),
-    ('tau = "1ms"\n', "unknown key 'tau'"),
-    ('temp = "70:0"\n', "key 'temp': minimum 70 °C is above maximum 0 °C"),
-    ('samples = "many"\n', "key 'samples': 'many' is not a whole number"),
-    ('window = "5%:10%"\n', "key 'window': window '5%:10%' excludes the target"),
-    ('r-tol = "150%"\n', "key 'r-tol': tolerance '150%' is more than ±50%"),
-    ('spares = "5000%"\n', "key 'spares': '5000%' must lie in 0%…1000%"),
-    ('temp = "1e400"\n', "key 'temp': '1e400' is not a finite temperature range"),
-    ('c-age = "nan"\n', "key 'c-age': cannot read 'nan'"),
-    ('dielectric = "X9Z"\n', "key 'dielectric': unknown dielectric"),
-    ('r-series = "E25"\n', "key 'r-series': unknown series"),
-    ('top = 0\n', "key 'top': 0 must be between 1 and 200"),
-    ('seed = -1\n', "key 'seed': -1 is not a whole number 0 or more"),
-    ('temp = \n', "not valid TOML"),
-])
+@pytest.mark.parametrize(
+    ("text", "fragment"),
+    [
+        ('tmp = "0:70"\n', "unknown key 'tmp'; valid keys: supply limit r-series"),
+        ('tau = "1ms"\n', "unknown key 'tau'"),
+        ('temp = "70:0"\n', "key 'temp': minimum 70 °C is above maximum 0 °C"),
+        ('samples = "many"\n', "key 'samples': 'many' is not a whole number"),
+        ('window = "5%:10%"\n', "key 'window': window '5%:10%' excludes the target"),
+        ('r-tol = "150%"\n', "key 'r-tol': tolerance '150%' is more than ±50%"),
+        ('spares = "5000%"\n', "key 'spares': '5000%' must lie in 0%…1000%"),
+        ('temp = "1e400"\n', "key 'temp': '1e400' is not a finite temperature range"),
+        ('c-age = "nan"\n', "key 'c-age': cannot read 'nan'"),
+        ('dielectric = "X9Z"\n', "key 'dielectric': unknown dielectric"),
+        ('r-series = "E25"\n', "key 'r-series': unknown series"),
+        ("top = 0\n", "key 'top': 0 must be between 1 and 200"),
+        ("seed = -1\n", "key 'seed': -1 is not a whole number 0 or more"),
+        ("temp = \n", "not valid TOML"),
+    ],
+)
 def test_bad_file_names_key_and_valid(run, tmp_path, monkeypatch, text, fragment):
     monkeypatch.chdir(tmp_path)
     (tmp_path / "rcpick.toml").write_text(text)

@@ -1,8 +1,8 @@
 """Every ``rcpick`` example in README.md runs and exits 0, so the README cannot drift from the code."""
 
 import re
-import shutil
 import shlex
+import shutil
 from pathlib import Path
 
 import pytest

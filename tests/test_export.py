@@ -29,9 +29,22 @@ def test_xlsx_sheets_types_and_formats(demo_xlsx):
         assert sheet.column_dimensions["A"].width >= 10
     short = book["shortlist"]
     headers = [c.value for c in short[1]]
-    assert {"rank", "R wiring", "C wiring", "R1 (Ω)", "R1 tol − (%)", "R1 TCR max (ppm/°C)", "C1 dielectric",
-            "C1 part number", "tau (s)", "error (fraction)", "worst-case min (s)", "MC 99.865 % (s)",
-            "yield (fraction)", "parts"} <= set(headers)
+    assert {
+        "rank",
+        "R wiring",
+        "C wiring",
+        "R1 (Ω)",
+        "R1 tol − (%)",
+        "R1 TCR max (ppm/°C)",
+        "C1 dielectric",
+        "C1 part number",
+        "tau (s)",
+        "error (fraction)",
+        "worst-case min (s)",
+        "MC 99.865 % (s)",
+        "yield (fraction)",
+        "parts",
+    } <= set(headers)
     tau = short.cell(row=2, column=headers.index("tau (s)") + 1)
     assert tau.data_type == "n" and tau.number_format == "##0.000E+0"
     assert short.cell(row=2, column=headers.index("yield (fraction)") + 1).number_format == "0.000%"
@@ -80,7 +93,12 @@ def test_csv_shortlist_and_order(run, tmp_path):
     short = tmp_path / "short.csv"
     lines = tmp_path / "order.csv"
     assert run("find", "--cutoff", "1kHz", "--top", "4", "--out", str(short)).exit_code == 0
-    assert run("find", "--cutoff", "1kHz", "--top", "4", "--out", str(lines), "--sheet", "order", "--boards", "10").exit_code == 0
+    assert (
+        run(
+            "find", "--cutoff", "1kHz", "--top", "4", "--out", str(lines), "--sheet", "order", "--boards", "10"
+        ).exit_code
+        == 0
+    )
     frame = pd.read_csv(short)
     assert len(frame) == 4 and "nominal (Hz)" in frame.columns
     order = pd.read_csv(lines)
@@ -116,7 +134,11 @@ def test_atomic_write_leaves_nothing_broken(tmp_path):
 
 
 BAD = {
-    "order rank missing": (["--top", "5", "--order", "7", "--out", "x.xlsx"], "--order", "rank 7 is not listed; 5 candidate(s)"),
+    "order rank missing": (
+        ["--top", "5", "--order", "7", "--out", "x.xlsx"],
+        "--order",
+        "rank 7 is not listed; 5 candidate(s)",
+    ),
     "order without out": (["--order", "2"], "--order needs --out", "order sheet"),
     "boards zero": (["--boards", "0"], "--boards", "must be between 1 and"),
     "unwritable path": (["--out", "/nonexistent-folder/x.xlsx"], "--out", "does not exist"),
@@ -142,8 +164,21 @@ def test_bad_export_input(run, case, tmp_path, monkeypatch):
 
 def test_spread_exports_its_design(run, tmp_path):
     path = tmp_path / "one.xlsx"
-    result = run("spread", "--r", "47k", "--c", "100n", "--stock", "demo", "--tau", "4.7ms", "--boards", "100",
-                 "--out", str(path))
+    result = run(
+        "spread",
+        "--r",
+        "47k",
+        "--c",
+        "100n",
+        "--stock",
+        "demo",
+        "--tau",
+        "4.7ms",
+        "--boards",
+        "100",
+        "--out",
+        str(path),
+    )
     assert result.exit_code == 0, result.output
     order = pd.read_excel(path, sheet_name="order")
     # the cheapest line that covers 100 boards: the 100n X7R line, not the C0G one (300 on hand, 19× the price)

@@ -6,7 +6,8 @@ from rcpick.netlist import NetlistError, parse
 
 
 def test_values_comments_and_parameters():
-    net = parse("""* a title comment
+    net = parse(
+        """* a title comment
 V1 in 0 DC 5      ; an inline comment
 R1 in a 1Meg 1% 100ppm
 R2 a 0 4K7 thin-film
@@ -17,7 +18,9 @@ I1 0 a 1m
 .tran 1u 1m
 .end
 R9 ignored after end 1k
-""", "t.cir")
+""",
+        "t.cir",
+    )
     assert [e.name for e in net.elements] == ["V1", "R1", "R2", "C1", "C2", "C3", "I1"]
     r1 = net.get("r1")
     assert r1.value == 1e6 and r1.params["tol"] == (-0.01, 0.01) and r1.params["tcr"] == pytest.approx((-1e-4, 1e-4))
@@ -45,13 +48,20 @@ BAD = {
     "capacitor shorted by a source": ("V1 a 0 5\nC1 a 0 1u\nR1 a 0 1k\n", 2, "shorted by voltage sources"),
     "capacitor shorted through two sources": ("V1 a 0 5\nV2 b a 1\nC1 b 0 1u\nR1 b 0 1k\n", 3, "shorted"),
     "unknown element letter": ("V1 a 0 5\nL1 a b 1m\n", 2, "unknown element letter 'L'"),
-    "duplicate name": ("V1 a 0 5\nR1 a b 1k\nr1 b 0 1k\nC1 b 0 1u\n", 3, "duplicate element name 'r1' (first on line 2)"),
+    "duplicate name": (
+        "V1 a 0 5\nR1 a b 1k\nr1 b 0 1k\nC1 b 0 1u\n",
+        3,
+        "duplicate element name 'r1' (first on line 2)",
+    ),
     "missing ground": ("V1 a b 5\nR1 a b 1k\nC1 a b 1u\n", None, "no element connects to ground"),
     "both ends on one node": ("V1 a 0 5\nC1 a a 1u\n", 2, "both ends of the capacitor"),
     "short line": ("V1 a 0 5\nR1 a b\n", 2, "needs two nodes and a value"),
     "bad value": ("V1 a 0 5\nR1 a 0 10q\n", 2, "R1: cannot read '10q'"),
-    "old key=value form": ("V1 a 0 5\nR1 a 0 1k tol=1%\n", 2,
-                           "'tol=1%' is the old key=value form; write annotations as bare tokens, e.g. R1 vdd rst 47k 1% 100ppm"),
+    "old key=value form": (
+        "V1 a 0 5\nR1 a 0 1k tol=1%\n",
+        2,
+        "'tol=1%' is the old key=value form; write annotations as bare tokens, e.g. R1 vdd rst 47k 1% 100ppm",
+    ),
     "unknown annotation": ("V1 a 0 5\nR1 a 0 1k red\n", 2, "R1: cannot read 'red'; expected a tolerance (1%)"),
     "bad dielectric": ("V1 a 0 5\nR1 a b 1k\nC1 b 0 1u X9Q\n", 3, "C1: cannot read 'X9Q'; expected a tolerance"),
     "two tolerances": ("V1 a 0 5\nR1 a b 1k 1% 5%\nC1 b 0 1u\n", 2, "'5%' gives a second tol"),
@@ -76,7 +86,10 @@ def test_cli_bad_netlist_is_one_line(run, tmp_path):
     path.write_text("V1 a 0 5\nL1 a 0 1m\n")
     result = run("net", str(path))
     assert result.exit_code == 2
-    assert result.stderr.strip() == f"rcpick: error: {path} line 2: unknown element letter 'L' in 'L1'; accepted: R, C, V, I"
+    assert (
+        result.stderr.strip()
+        == f"rcpick: error: {path} line 2: unknown element letter 'L' in 'L1'; accepted: R, C, V, I"
+    )
     missing = run("net", str(tmp_path / "none.cir"))
     assert missing.exit_code == 2 and "none.cir: no such file" in missing.stderr
 

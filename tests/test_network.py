@@ -1,4 +1,7 @@
-"""Network analysis against circuit-theory results (C. A. Desoer, E. S. Kuh, *Basic Circuit Theory*) and its own invariants."""
+"""Network analysis against circuit-theory results and its own invariants.
+
+Source of the circuit theory: C. A. Desoer, E. S. Kuh, *Basic Circuit Theory* (natural frequencies, order).
+"""
 
 import math
 
@@ -12,7 +15,7 @@ from rcpick.netlist import parse
 
 
 def test_coupled_node_first_order():
-    # Circuits texts (Desoer and Kuh, natural frequencies): R from source to node, C to ground, C1 source–node: zeroing the
+    # Circuits texts (Desoer and Kuh): R from source to node, C to ground, C1 source–node: zeroing the
     # source puts C and C1 in parallel, tau = R(C + C1); the node jumps to Vs·C1/(C + C1).
     net = parse("V1 in 0 5\nR1 in out 10k\nC1 out 0 100n\nC2 in out 22n\n")
     (taus,) = nodal.time_constants(net)
@@ -44,16 +47,19 @@ def test_kuphaldt_charging_crossing():
     assert volts == pytest.approx([5.902, 9.482, 14.253, 14.899], abs=5e-4)
 
 
-@pytest.mark.parametrize(("text", "order"), [
-    # Order = capacitors left after zeroing sources and merging (circuits texts: Desoer and Kuh).
-    ("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nC2 a 0 2u\n", 1),                        # parallel capacitors merge
-    ("V1 in 0 1\nR1 in a 1k\nC1 a m 1u\nC2 m 0 1u\n", 1),                        # series: a capacitor-only cutset at m
-    ("V1 in 0 1\nC1 in m 1u\nC2 m 0 3u\nR1 m 0 1Meg\n", 1),                      # V–C–C loop: C1 ∥ C2 once V is shorted
-    ("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nR2 a b 10k\nC2 b 0 100n\n", 2),          # a ladder
-    ("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nC2 a b 1u\nC3 b 0 1u\nR2 b 0 1k\n", 2),
-    ("V1 in 0 1\nR1 in a 1k\nR2 a 0 1k\n", 0),                                  # no capacitor
-    ("V1 in 0 1\nC1 in a 1u\nC2 a 0 1u\n", 0),                                  # capacitor-only: no finite nonzero frequency
-])
+@pytest.mark.parametrize(
+    ("text", "order"),
+    [
+        # Order = capacitors left after zeroing sources and merging (circuits texts: Desoer and Kuh).
+        ("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nC2 a 0 2u\n", 1),  # parallel capacitors merge
+        ("V1 in 0 1\nR1 in a 1k\nC1 a m 1u\nC2 m 0 1u\n", 1),  # series: a capacitor-only cutset at m
+        ("V1 in 0 1\nC1 in m 1u\nC2 m 0 3u\nR1 m 0 1Meg\n", 1),  # V–C–C loop: C1 ∥ C2 once V is shorted
+        ("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nR2 a b 10k\nC2 b 0 100n\n", 2),  # a ladder
+        ("V1 in 0 1\nR1 in a 1k\nC1 a 0 1u\nC2 a b 1u\nC3 b 0 1u\nR2 b 0 1k\n", 2),
+        ("V1 in 0 1\nR1 in a 1k\nR2 a 0 1k\n", 0),  # no capacitor
+        ("V1 in 0 1\nC1 in a 1u\nC2 a 0 1u\n", 0),  # capacitor-only: no finite nonzero frequency
+    ],
+)
 def test_order_rule(text, order):
     assert len(nodal.time_constants(parse(text))[0]) == order
 

@@ -102,8 +102,9 @@ def test_digits_of_other_scripts_are_refused(text):
         parse_quantity(text, "time" if text.endswith("ms") else "resistance")
 
 
-@pytest.mark.parametrize(("text", "value"), [("20000", 20000), ("2e4", 20000), ("20k", 20000), ("1M", 1000000),
-                                             ("1_000", 1000)])
+@pytest.mark.parametrize(
+    ("text", "value"), [("20000", 20000), ("2e4", 20000), ("20k", 20000), ("1M", 1000000), ("1_000", 1000)]
+)
 def test_counts_in_rcpick_notation(text, value):
     assert parse_count(text) == value
 
@@ -114,8 +115,9 @@ def test_bad_counts(text):
         parse_count(text)
 
 
-@pytest.mark.parametrize(("text", "kind"), [("5e-324", "time"), ("1e-300", "resistance"), ("1e400", "time"),
-                                            ("1e20", "capacitance")])
+@pytest.mark.parametrize(
+    ("text", "kind"), [("5e-324", "time"), ("1e-300", "resistance"), ("1e400", "time"), ("1e20", "capacitance")]
+)
 def test_values_outside_what_rcpick_handles_are_refused(text, kind):
     with pytest.raises(BadValue, match="outside|not a finite"):
         parse_quantity(text, kind)
@@ -172,7 +174,9 @@ def _every_series_value(low, high):
         yield from series.get(name).values(low, high)
 
 
-@pytest.mark.parametrize(("kind", "unit", "low", "high"), [("resistance", "Ω", 1e-3, 1e12), ("capacitance", "F", 0.1e-12, 1.0)])
+@pytest.mark.parametrize(
+    ("kind", "unit", "low", "high"), [("resistance", "Ω", 1e-3, 1e12), ("capacitance", "F", 0.1e-12, 1.0)]
+)
 def test_round_trip_every_series_value(kind, unit, low, high):
     """format → parse gives back every series value exactly, 1 mΩ…1 TΩ and 0.1 pF…1 F."""
     count = 0

@@ -14,8 +14,11 @@ ROOT = Path(__file__).resolve().parents[1]
 @pytest.fixture(scope="module")
 def wheel(tmp_path_factory):
     out = tmp_path_factory.mktemp("wheel")
-    subprocess.run([sys.executable, "-m", "pip", "wheel", "--no-deps", "-q", "-w", str(out), str(ROOT)],
-                   check=True, capture_output=True)
+    subprocess.run(
+        [sys.executable, "-m", "pip", "wheel", "--no-deps", "-q", "-w", str(out), str(ROOT)],
+        check=True,
+        capture_output=True,
+    )
     (path,) = out.glob("rcpick-*.whl")
     return path
 
@@ -31,13 +34,18 @@ def test_wheel_contains_data(wheel):
 
 def test_installed_wheel_finds_its_data(wheel, tmp_path):
     target = tmp_path / "site"
-    subprocess.run([sys.executable, "-m", "pip", "install", "--no-deps", "-q", "--target", str(target), str(wheel)],
-                   check=True, capture_output=True)
+    subprocess.run(
+        [sys.executable, "-m", "pip", "install", "--no-deps", "-q", "--target", str(target), str(wheel)],
+        check=True,
+        capture_output=True,
+    )
     probe = (
         "import rcpick, rcpick.datafiles as d, rcpick.series as s;"
         "print(rcpick.__file__); print(d.data_dir()); print(len(s.get('E192').digits))"
     )
     env = dict(os.environ, PYTHONPATH=str(target))
-    done = subprocess.run([sys.executable, "-c", probe], cwd=tmp_path, env=env, capture_output=True, text=True, check=True)
+    done = subprocess.run(
+        [sys.executable, "-c", probe], cwd=tmp_path, env=env, capture_output=True, text=True, check=True
+    )
     module, data, count = done.stdout.split()
     assert module.startswith(str(target)) and data == str(target / "rcpick" / "data") and count == "192"

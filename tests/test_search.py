@@ -17,8 +17,16 @@ def oracle(r, c, target, top):
     i, j = (a.ravel() for a in np.meshgrid(np.arange(len(r)), np.arange(len(c)), indexing="ij"))
     error = np.abs(target.quantity(r.value[i], c.value[j]) / target.value - 1.0)
     error = np.where(np.isnan(error), np.inf, error)
-    key = sorted(zip(np.round(error, search.ERROR_DECIMALS).tolist(), (r.parts[i] + c.parts[j]).tolist(),
-                     r.value[i].tolist(), c.value[j].tolist(), i.tolist(), j.tolist()))
+    key = sorted(
+        zip(
+            np.round(error, search.ERROR_DECIMALS).tolist(),
+            (r.parts[i] + c.parts[j]).tolist(),
+            r.value[i].tolist(),
+            c.value[j].tolist(),
+            i.tolist(),
+            j.tolist(),
+        )
+    )
     return [(row[4], row[5]) for row in key[:top]]
 
 

@@ -116,7 +116,11 @@ def test_normal_band_is_three_sigma_truncated():
 
 
 def test_same_seed_same_numbers():
-    study = single_study(PartModel((-0.05, 0.05), models.linear(-1e-4, 1e-4)), PartModel((-0.1, 0.1), models.dielectric("X7R").drift), (0, 70))
+    study = single_study(
+        PartModel((-0.05, 0.05), models.linear(-1e-4, 1e-4)),
+        PartModel((-0.1, 0.1), models.dielectric("X7R").drift),
+        (0, 70),
+    )
     one = variation.monte_carlo(study, 5000, 42, "normal", window=(0.9e-3, 1.1e-3))
     two = variation.monte_carlo(study, 5000, 42, "normal", window=(0.9e-3, 1.1e-3))
     other = variation.monte_carlo(study, 5000, 43, "normal", window=(0.9e-3, 1.1e-3))
@@ -157,12 +161,15 @@ def test_designs_in_one_batch_match_each_alone():
     tight = PartModel((-0.01, 0.01), models.linear(-25e-6, 25e-6))
     loose = PartModel((-0.05, 0.05), models.linear(-200e-6, 200e-6))
     cap = PartModel((-0.1, 0.1), models.dielectric("X7R").drift)
-    r_all = variation.Position.of("resistance", [[10e3], [4.7e3], [22e3]], [SINGLE] * 3, [[tight, tight], [loose, loose], [tight, tight]])
+    r_all = variation.Position.of(
+        "resistance", [[10e3], [4.7e3], [22e3]], [SINGLE] * 3, [[tight, tight], [loose, loose], [tight, tight]]
+    )
     c_all = variation.Position.of("capacitance", [[100e-9], [220e-9], [47e-9]], [SINGLE] * 3, cap)
     both = variation.monte_carlo(variation.Study(r_all, c_all, (0, 70), targets.for_tau(1e-3)), 3000, 5)
     for m in range(3):
-        r_one = variation.Position(r_all.kind, r_all.parts[m:m + 1], r_all.wiring[m:m + 1], r_all.models[m:m + 1])
-        c_one = variation.Position(c_all.kind, c_all.parts[m:m + 1], c_all.wiring[m:m + 1], c_all.models[m:m + 1])
+        r_one = variation.Position(r_all.kind, r_all.parts[m : m + 1], r_all.wiring[m : m + 1], r_all.models[m : m + 1])
+        c_one = variation.Position(c_all.kind, c_all.parts[m : m + 1], c_all.wiring[m : m + 1], c_all.models[m : m + 1])
         alone = variation.monte_carlo(variation.Study(r_one, c_one, (0, 70), targets.for_tau(1e-3)), 3000, 5)
         assert (alone.p_low[0], alone.p_median[0], alone.p_high[0]) == pytest.approx(
-            (both.p_low[m], both.p_median[m], both.p_high[m]), rel=1e-12)
+            (both.p_low[m], both.p_median[m], both.p_high[m]), rel=1e-12
+        )

@@ -10,7 +10,8 @@ from rcpick.errors import BadValue
 
 
 def test_step_response_percentages():
-    # Charging 1 − e^(−n) (OpenStax College Physics 2e §21.6, eqs. 21.77–21.80): 63.212, 86.466, 95.021, 98.168, 99.326 %.
+    # Charging 1 − e^(−n) (OpenStax College Physics 2e §21.6, eqs. 21.77–21.80):
+    # 63.212, 86.466, 95.021, 98.168, 99.326 %.
     for n, percent in zip(range(1, 6), [63.212, 86.466, 95.021, 98.168, 99.326]):
         assert round(100 * (1 - math.exp(-n)), 3) == percent
         assert targets.delay_factor(percent / 100, falling=False) == pytest.approx(n, abs=1e-3)
@@ -69,8 +70,9 @@ def test_voltage_threshold_rules():
     with pytest.raises(BadValue, match="in volts needs supply"):
         targets.level_fraction(2.0, is_volts=True, scale_v=None, setting="threshold")
     with pytest.raises(BadValue, match="below the supply"):
-        targets.for_delay(1.0, targets.level_fraction(5.0, is_volts=True, scale_v=5.0, setting="threshold"),
-                          scale_v=5.0)
+        targets.for_delay(
+            1.0, targets.level_fraction(5.0, is_volts=True, scale_v=5.0, setting="threshold"), scale_v=5.0
+        )
     assert targets.level_fraction(2.5, is_volts=True, scale_v=5.0, setting="threshold") == 0.5
 
 

@@ -27,7 +27,10 @@ CAUTION = (
 
 #: command → (module, one-line summary shown by rcpick --help)
 COMMANDS = {
-    "find": ("rcpick.cli.find", "Find the standard R and C values (single parts or pairs) that best hit a timing target."),
+    "find": (
+        "rcpick.cli.find",
+        "Find the standard R and C values (single parts or pairs) that best hit a timing target.",
+    ),
     "spread": ("rcpick.cli.spread", "Analyse one design: worst case, Monte Carlo spread, yield, contributions."),
     "net": ("rcpick.cli.net", "Order, natural time constants and step response of an RC network from a netlist."),
     "values": ("rcpick.cli.values", "List the values of an IEC 60063 E-series, or the neighbours of one value."),
@@ -79,8 +82,13 @@ class LazyGroup(TyperGroup):
             # no library's warning reaches the user: rcpick says what matters in its own words
             warnings.simplefilter("ignore")
             try:
-                result = super().main(args=argv, prog_name=prog_name or "rcpick", complete_var=complete_var,
-                                      standalone_mode=False, **extra)
+                result = super().main(
+                    args=argv,
+                    prog_name=prog_name or "rcpick",
+                    complete_var=complete_var,
+                    standalone_mode=False,
+                    **extra,
+                )
                 code = result if isinstance(result, int) else 0
             except typer.Exit as stop:
                 code = stop.exit_code
@@ -134,8 +142,9 @@ def _version(show: bool) -> None:
 
 @app.callback()
 def _root(
-    version: bool = typer.Option(False, "--version", callback=_version, is_eager=True, metavar="",
-                                 help="Print the version and exit."),
+    version: bool = typer.Option(
+        False, "--version", callback=_version, is_eager=True, metavar="", help="Print the version and exit."
+    ),
 ) -> None:
     """Pick standard R and C values for an RC timing."""
 

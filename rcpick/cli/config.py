@@ -33,17 +33,23 @@ def command(ctx: typer.Context, **values) -> None:
     rows = resolved_settings(spec, spec.plan())
     config_file = layer_list[1].source if layer_list[1] is not None else None
     if fmt == "json":
-        o.print_json({"config_file": config_file,
-                      "settings": [{"key": k, "value": v, "source": s} for k, v, s in rows]})
+        o.print_json(
+            {"config_file": config_file, "settings": [{"key": k, "value": v, "source": s} for k, v, s in rows]}
+        )
         return
     from rcpick.cli.render import print_table
 
     out = o.console()
     out.print(f"[bold]Project file[/bold] {config_file or f'none (no ./{FILE_NAME})'}")
-    print_table(out, [{"name": "setting", "justify": "left", "drop": None},
-                      {"name": "value", "justify": "left", "drop": None},
-                      {"name": "source", "justify": "left", "drop": 1}],
-                [[k, "" if v is None else str(v), s] for k, v, s in rows])
+    print_table(
+        out,
+        [
+            {"name": "setting", "justify": "left", "drop": None},
+            {"name": "value", "justify": "left", "drop": None},
+            {"name": "source", "justify": "left", "drop": 1},
+        ],
+        [[k, "" if v is None else str(v), s] for k, v, s in rows],
+    )
 
 
 command.__signature__ = o.signature(FindSpec.declared(), [o.FORMAT_NO_CSV, o.CONFIG])  # type: ignore[attr-defined]

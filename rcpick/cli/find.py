@@ -44,8 +44,9 @@ def command(ctx: typer.Context, **values) -> None:
     from rcpick.api import run_find
 
     fmt = o.check_format(values.pop("fmt"))
-    out, sheet, order, force, plot, config = (values.pop(k) for k in ("out", "sheet", "order", "force", "plot",
-                                                                      "config"))
+    out, sheet, order, force, plot, config = (
+        values.pop(k) for k in ("out", "sheet", "order", "force", "plot", "config")
+    )
     o.check_outputs(out, sheet, order, plot, force)
     spec = FindSpec.build(*o.layers(values, config))
     with o.ProgressBar() as bar:

@@ -52,19 +52,25 @@ def render(doc: dict) -> None:
     out.print(f"[bold]Netlist[/bold] {doc['netlist']}: {doc['capacitors']} capacitor(s) drawn")
     for message in doc["warnings"]:
         out.print(f"[yellow]Warning:[/yellow] {message}")
-    out.print(f"[bold]Order[/bold] {doc['order']} (finite nonzero natural frequencies, sources zeroed: "
-              f"V shorted, I opened; parallel/series capacitors and capacitor-only loops or cutsets merge)")
+    out.print(
+        f"[bold]Order[/bold] {doc['order']} (finite nonzero natural frequencies, sources zeroed: "
+        f"V shorted, I opened; parallel/series capacitors and capacitor-only loops or cutsets merge)"
+    )
     if doc["time_constants_s"]:
         out.print("[bold]Time constants[/bold] " + ", ".join(format_si(t, "s", 4) for t in doc["time_constants_s"]))
     if "c_eq_farad" in doc:
         a, b = doc["port"]
-        out.print(f"[bold]First order[/bold] C_eq = {format_si(doc['c_eq_farad'], 'F', 4)} across {a}–{b}, "
-                  f"R_th = {format_si(doc['r_th_ohm'], 'Ω', 4)} seen there; tau = R_th·C_eq = "
-                  f"{format_si(doc['r_th_ohm'] * doc['c_eq_farad'], 's', 4)}")
+        out.print(
+            f"[bold]First order[/bold] C_eq = {format_si(doc['c_eq_farad'], 'F', 4)} across {a}–{b}, "
+            f"R_th = {format_si(doc['r_th_ohm'], 'Ω', 4)} seen there; tau = R_th·C_eq = "
+            f"{format_si(doc['r_th_ohm'] * doc['c_eq_farad'], 's', 4)}"
+        )
     step = doc.get("step")
     if step:
-        line = (f"[bold]Step at {step['node']}[/bold] v(0+) = {format_si(step['v0'], 'V', 4)}, "
-                f"final {format_si(step['v_final'], 'V', 4)}")
+        line = (
+            f"[bold]Step at {step['node']}[/bold] v(0+) = {format_si(step['v0'], 'V', 4)}, "
+            f"final {format_si(step['v_final'], 'V', 4)}"
+        )
         if step["threshold_v"] is not None and step["t_threshold_s"] is not None:
             line += f"; reaches {format_si(step['threshold_v'], 'V', 4)} at {format_si(step['t_threshold_s'], 's', 4)}"
         out.print(line)

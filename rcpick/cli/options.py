@@ -23,7 +23,7 @@ import typer
 from typer.core import TyperCommand
 
 from rcpick.errors import BadValue, ClashingOptions, RcpickError, parameter_name
-from rcpick.settings import SETTINGS, Setting, option_name
+from rcpick.settings import Setting, option_name
 
 OUTPUT = "Output"
 
@@ -43,11 +43,23 @@ def help_text(setting: Setting) -> str:
 def parameter(setting: Setting) -> inspect.Parameter:
     """A typer option for one setting (text, or a switch)."""
     if setting.flag:
-        default = typer.Option(False, setting.flag_name, help=help_text(setting), rich_help_panel=setting.panel or None,
-                               show_default=False, metavar="")
+        default = typer.Option(
+            False,
+            setting.flag_name,
+            help=help_text(setting),
+            rich_help_panel=setting.panel or None,
+            show_default=False,
+            metavar="",
+        )
         return inspect.Parameter(setting.name, inspect.Parameter.KEYWORD_ONLY, default=default, annotation=bool)
-    default = typer.Option(None, setting.flag_name, metavar=setting.metavar, help=help_text(setting),
-                           rich_help_panel=setting.panel or None, show_default=False)
+    default = typer.Option(
+        None,
+        setting.flag_name,
+        metavar=setting.metavar,
+        help=help_text(setting),
+        rich_help_panel=setting.panel or None,
+        show_default=False,
+    )
     return inspect.Parameter(setting.name, inspect.Parameter.KEYWORD_ONLY, default=default, annotation=str | None)
 
 
@@ -66,19 +78,26 @@ def cli_only(name: str, flag: str, help: str, metavar: str = "", switch: bool = 
 
 FORMAT = cli_only("fmt", "--format", "Output: table, json or csv. Default: table.", "table|json|csv")
 FORMAT_NO_CSV = cli_only("fmt", "--format", "Output: table or json. Default: table.", "table|json")
-OUT = cli_only("out", "--out", "Write the result: .xlsx (sheets shortlist, order, query) or .csv (one sheet, see "
-               "--sheet).", "FILE")
-SHEET = cli_only("sheet", "--sheet", "Which table a .csv --out holds: shortlist or order. Default: shortlist.",
-                 "shortlist|order")
+OUT = cli_only(
+    "out", "--out", "Write the result: .xlsx (sheets shortlist, order, query) or .csv (one sheet, see --sheet).", "FILE"
+)
+SHEET = cli_only(
+    "sheet", "--sheet", "Which table a .csv --out holds: shortlist or order. Default: shortlist.", "shortlist|order"
+)
 ORDER = cli_only("order", "--order", "Candidates whose parts go on the order sheet, e.g. 1,3. Default: 1.", "RANKS")
 FORCE = cli_only("force", "--force", "Overwrite an existing --out or --plot file.", switch=True)
 PLOT = cli_only("plot", "--plot", "Draw a PNG; needs matplotlib: pip install 'rcpick[plot]'.", "FILE.png")
-CONFIG = cli_only("config", "--config", "Project defaults file. Default: ./rcpick.toml when present; options on the "
-                  "command line win.", "FILE")
+CONFIG = cli_only(
+    "config",
+    "--config",
+    "Project defaults file. Default: ./rcpick.toml when present; options on the command line win.",
+    "FILE",
+)
 
 
-def signature(declared: list[Setting], extra: list[inspect.Parameter],
-              arguments: tuple[str, ...] = ()) -> inspect.Signature:
+def signature(
+    declared: list[Setting], extra: list[inspect.Parameter], arguments: tuple[str, ...] = ()
+) -> inspect.Signature:
     """A command's signature: a typer Context, its arguments, the settings' options, then the command's own."""
     ctx = inspect.Parameter("ctx", inspect.Parameter.POSITIONAL_OR_KEYWORD, annotation=typer.Context)
     params = [argument(s) for s in declared if s.name in arguments]
@@ -94,7 +113,7 @@ class Command(TyperCommand):
         if option is not None:
             option.metavar = ""
             if hasattr(option, "_runtime_param"):
-                option._runtime_param = _AsTyped()
+                option._runtime_param = _AsTyped()  # type: ignore[assignment]
         return option
 
 
@@ -121,6 +140,7 @@ def register(app: typer.Typer, name: str, command: Callable, epilog: str) -> Non
 
 
 # --- errors ------------------------------------------------------------------------
+
 
 def say_error(error: RcpickError) -> None:
     namer = option_name if error.namer is parameter_name else error.namer
@@ -150,6 +170,7 @@ def check_format(fmt: str | None, allowed: tuple[str, ...] = ("table", "json", "
 
 
 # --- layers ------------------------------------------------------------------------
+
 
 def cli_layer(values: dict[str, Any]):
     from rcpick.specs import Layer
@@ -201,8 +222,9 @@ def print_csv(rows: list[dict]) -> None:
         writer = csv.DictWriter(buffer, fieldnames=list(rows[0]), lineterminator="\n")
         writer.writeheader()
         for row in rows:
-            writer.writerow({k: ("" if v is None or (isinstance(v, float) and not math.isfinite(v)) else v)
-                             for k, v in row.items()})
+            writer.writerow(
+                {k: ("" if v is None or (isinstance(v, float) and not math.isfinite(v)) else v) for k, v in row.items()}
+            )
     sys.stdout.write(buffer.getvalue())
 
 
@@ -222,6 +244,7 @@ def command_line() -> str:
 
 # --- outputs to files ---------------------------------------------------------------
 
+
 def check_outputs(out: str | None, sheet: str | None, order: str | None, plot: str | None, force: bool) -> None:
     """Reject a bad --out/--sheet/--order/--plot before any work is done."""
     if out is None and plot is None and sheet is None and order is None:
@@ -236,8 +259,9 @@ def check_outputs(out: str | None, sheet: str | None, order: str | None, plot: s
         if sheet is not None:
             raise ClashingOptions("{sheet} needs {out} FILE.csv", setting="sheet")
         if order is not None:
-            raise ClashingOptions("{order} needs {out} FILE (it picks the candidates for the order sheet)",
-                                  setting="order")
+            raise ClashingOptions(
+                "{order} needs {out} FILE (it picks the candidates for the order sheet)", setting="order"
+            )
     if plot is not None:
         if Path(plot).suffix.lower() != ".png":
             raise BadValue(f"{plot!r} must end in .png", setting="plot")
@@ -256,14 +280,15 @@ def parse_order(text: str | None) -> list[int] | None:
     return ranks
 
 
-def write_files(result, *, out: str | None, sheet: str | None, order: str | None, plot: str | None, force: bool,
-                quiet: bool) -> None:
+def write_files(
+    result, *, out: str | None, sheet: str | None, order: str | None, plot: str | None, force: bool, quiet: bool
+) -> None:
     """Write --out and --plot from a result; say what was written (on stderr when stdout carries data)."""
     if out is not None:
         try:
             path = result.save(out, order=parse_order(order), sheet=sheet, force=force)
         except RcpickError as error:
-            raise error.about("out") if error.setting is None else error
+            raise (error.about("out") if error.setting is None else error) from None
         written = "shortlist, order, query" if path.suffix.lower() == ".xlsx" else (sheet or "shortlist")
         typer.echo(f"Wrote {path} ({written})", err=quiet)
     if plot is not None:
@@ -291,8 +316,14 @@ class ProgressBar:
         from rich.console import Console
         from rich.progress import BarColumn, Progress, TimeRemainingColumn
 
-        self.bar = Progress(f"[bold]{self.label}[/bold]", BarColumn(), "{task.percentage:>3.0f} %",
-                            TimeRemainingColumn(), console=Console(stderr=True), transient=True)
+        self.bar = Progress(
+            f"[bold]{self.label}[/bold]",
+            BarColumn(),
+            "{task.percentage:>3.0f} %",
+            TimeRemainingColumn(),
+            console=Console(stderr=True),
+            transient=True,
+        )
         self.bar.start()
         self.task = self.bar.add_task(self.label, total=total)
 
@@ -300,7 +331,7 @@ class ProgressBar:
         if self.bar is not None:
             self.bar.advance(self.task, done)
 
-    def __enter__(self) -> "ProgressBar":
+    def __enter__(self) -> ProgressBar:
         return self
 
     def __exit__(self, *exc) -> None:

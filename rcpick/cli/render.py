@@ -14,8 +14,7 @@ from rcpick.cli.options import console
 from rcpick.notation import format_percent, format_si
 
 GAP = 2  # spaces between columns
-WIRING_LEGEND = ("Wiring: a + b in series, a ∥ b in parallel, in the IEC 60062 RKM code (4K7 = 4.7 kΩ, "
-                 "2u2 = 2.2 µF).")
+WIRING_LEGEND = "Wiring: a + b in series, a ∥ b in parallel, in the IEC 60062 RKM code (4K7 = 4.7 kΩ, 2u2 = 2.2 µF)."
 CAUTION = "Estimates only: verify on hardware."
 
 
@@ -52,6 +51,7 @@ def fit(columns: list[dict], rows: list[list[str]], width: int) -> tuple[list[in
     Each column dict has ``name``, ``justify`` and ``drop`` (the order in which it may be left out; None for a
     column that is always shown).
     """
+
     def need(keep: list[int]) -> int:
         total = 0
         for i in keep:
@@ -105,13 +105,17 @@ def find_table(result) -> None:
     searched = doc["searched"]
     if result.network is not None:
         n = result.network
-        out.print(f"[bold]Network[/bold] {n['netlist']}, varying {', '.join(n['vary'])}"
-                  + (f", timed at node {n['node']}" if n.get("node") else ""))
+        out.print(
+            f"[bold]Network[/bold] {n['netlist']}, varying {', '.join(n['vary'])}"
+            + (f", timed at node {n['node']}" if n.get("node") else "")
+        )
         out.print("[bold]Searched[/bold] " + " × ".join(f"{v:,} {k.split('_')[0]}" for k, v in searched.items()))
     else:
         total = searched["r_combinations"] * searched["c_combinations"]
-        out.print(f"[bold]Searched[/bold] {searched['r_combinations']:,} R ({result.descriptions['r']}) × "
-                  f"{searched['c_combinations']:,} C ({result.descriptions['c']}) = {total:,} combinations")
+        out.print(
+            f"[bold]Searched[/bold] {searched['r_combinations']:,} R ({result.descriptions['r']}) × "
+            f"{searched['c_combinations']:,} C ({result.descriptions['c']}) = {total:,} combinations"
+        )
     out.print(f"[bold]Parts[/bold] R {result.descriptions['r_model']}; C {result.descriptions['c_model']}")
     for note in result.notes:
         out.print(note)
@@ -119,21 +123,27 @@ def find_table(result) -> None:
         out.print(f"[yellow]Warning:[/yellow] {message}")
     cands = doc["candidates"]
     rel = target.limit is None
-    columns = [{"name": "#", "justify": "right", "drop": None}]
+    columns: list[dict] = [{"name": "#", "justify": "right", "drop": None}]
     if result.network is not None:
         for name in result.network["vary"]:
             columns.append({"name": name, "justify": "left", "drop": None})
     else:
-        columns += [{"name": "R", "justify": "left", "drop": None}, {"name": "C", "justify": "left", "drop": None},
-                    {"name": "R eff", "justify": "right", "drop": 1}, {"name": "C eff", "justify": "right", "drop": 2},
-                    {"name": "tau", "justify": "right", "drop": 3}]
+        columns += [
+            {"name": "R", "justify": "left", "drop": None},
+            {"name": "C", "justify": "left", "drop": None},
+            {"name": "R eff", "justify": "right", "drop": 1},
+            {"name": "C eff", "justify": "right", "drop": 2},
+            {"name": "tau", "justify": "right", "drop": 3},
+        ]
     if target.kind != "tau" or result.network is not None:
         columns.append({"name": target.kind, "justify": "right", "drop": 5})
-    columns += [{"name": "error" if rel else "vs limit", "justify": "right", "drop": None},
-                {"name": "worst case, %", "justify": "right", "drop": None},
-                {"name": "MC 99.73 %, %", "justify": "right", "drop": 4},
-                {"name": "yield % (95 % CI)", "justify": "right", "drop": None},
-                {"name": "parts", "justify": "right", "drop": None}]
+    columns += [
+        {"name": "error" if rel else "vs limit", "justify": "right", "drop": None},
+        {"name": "worst case, %", "justify": "right", "drop": None},
+        {"name": "MC 99.73 %, %", "justify": "right", "drop": 4},
+        {"name": "yield % (95 % CI)", "justify": "right", "drop": None},
+        {"name": "parts", "justify": "right", "drop": None},
+    ]
     priced = any(c.get("cost_per_board") is not None for c in cands)
     if priced:
         columns.append({"name": "cost", "justify": "right", "drop": 6})
@@ -144,14 +154,23 @@ def find_table(result) -> None:
         if result.network is not None:
             row += [cand["elements"][name]["text"] for name in result.network["vary"]]
         else:
-            row += [cand["r"]["text"], cand["c"]["text"], format_si(cand["r"]["ohm"], "Ω", 4, trim=True),
-                    format_si(cand["c"]["farad"], "F", 4, trim=True), format_si(cand["tau_s"], "s", 4)]
+            row += [
+                cand["r"]["text"],
+                cand["c"]["text"],
+                format_si(cand["r"]["ohm"], "Ω", 4, trim=True),
+                format_si(cand["c"]["farad"], "F", 4, trim=True),
+                format_si(cand["tau_s"], "s", 4),
+            ]
         if target.kind != "tau" or result.network is not None:
             row.append(format_si(cand["value"], unit, 4) if cand["value"] is not None else "never")
         mark = " !" if any("worst case" in f for f in cand["flags"]) else ""
-        row += [format_percent(cand["error"], 3, signed=True) if cand["error"] is not None else "–",
-                _span(sp["worst_min"], sp["worst_max"], target.value) + mark,
-                _span(sp["p_low"], sp["p_high"], target.value), yield_text(sp), str(cand["parts"])]
+        row += [
+            format_percent(cand["error"], 3, signed=True) if cand["error"] is not None else "–",
+            _span(sp["worst_min"], sp["worst_max"], target.value) + mark,
+            _span(sp["p_low"], sp["p_high"], target.value),
+            yield_text(sp),
+            str(cand["parts"]),
+        ]
         if priced:
             row.append(f"{cand['cost_per_board']:.4g}" if cand.get("cost_per_board") is not None else "–")
         rows.append(row)
@@ -166,9 +185,11 @@ def find_table(result) -> None:
         foot.append(f"… and {len(notes) - 6} more notes (--format json lists them).")
     if dropped:
         foot.append(f"Not shown at this width: {', '.join(dropped)} (widen the terminal, or use --format csv).")
-    legend = (WIRING_LEGEND + " Spread columns in % of the target: worst case over tolerance and temperature; "
-              "Monte Carlo 0.135 %…99.865 % span; yield = units inside the window at every temperature checked, "
-              "with its 95 % Wilson interval.")
+    legend = (
+        WIRING_LEGEND + " Spread columns in % of the target: worst case over tolerance and temperature; "
+        "Monte Carlo 0.135 %…99.865 % span; yield = units inside the window at every temperature checked, "
+        "with its 95 % Wilson interval."
+    )
     for line in foot:
         out.print(line)
     out.print(f"[dim]{legend}[/dim]")
@@ -188,8 +209,11 @@ def histogram_lines(counts, edges, marks: dict[str, float | None], unit: str, ba
     lines = []
     for i, count in enumerate(counts):
         lo, hi = edges[i], edges[i + 1]
-        here = [name for name, value in marks.items()
-                if value is not None and (lo <= value < hi or (i == len(counts) - 1 and value == hi))]
+        here = [
+            name
+            for name, value in marks.items()
+            if value is not None and (lo <= value < hi or (i == len(counts) - 1 and value == hi))
+        ]
         bar = "█" * int(round(count / peak * bar_width))
         label = f"{format_si((lo + hi) / 2, unit, 4):>10}"
         tag = f"  ◄ {', '.join(here)}" if here else ""
@@ -207,19 +231,26 @@ def spread_report(result) -> None:
     ref = target.value if has_target else doc["nominal"]
     ref_name = "target" if has_target else "nominal"
     d = doc["design"]
-    out.print(f"[bold]Design[/bold] R = {d['r']['text']} ({format_si(d['r']['ohm'], 'Ω', 4, trim=True)}; "
-              f"{result.model_text['r']})")
-    out.print(f"       C = {d['c']['text']} ({format_si(d['c']['farad'], 'F', 4, trim=True)}; "
-              f"{result.model_text['c']})")
+    out.print(
+        f"[bold]Design[/bold] R = {d['r']['text']} ({format_si(d['r']['ohm'], 'Ω', 4, trim=True)}; "
+        f"{result.model_text['r']})"
+    )
+    out.print(
+        f"       C = {d['c']['text']} ({format_si(d['c']['farad'], 'F', 4, trim=True)}; {result.model_text['c']})"
+    )
     for pos, sym in (("r", "R"), ("c", "C")):
         for part in d[pos]["parts_detail"]:
             if part.get("part_number"):
                 tol = part["tolerance"]
-                out.print(f"       {sym} {part['rkm']}: stock line {part['stock']['line'] if part.get('stock') else '?'}"
-                          f" {part['part_number']}, {tol[0] * 100:+g}/{tol[1] * 100:+g} %")
+                out.print(
+                    f"       {sym} {part['rkm']}: stock line {part['stock']['line'] if part.get('stock') else '?'}"
+                    f" {part['part_number']}, {tol[0] * 100:+g}/{tol[1] * 100:+g} %"
+                )
     cond = doc["analysis"]["settings"]
-    out.print(f"[bold]Over[/bold] {cond['temp_c'][0]:g}…{cond['temp_c'][1]:g} °C, {cond['samples']:,} units "
-              f"({cond['dist']}, seed {cond['seed']}, lot share {cond['lot_share']:g})")
+    out.print(
+        f"[bold]Over[/bold] {cond['temp_c'][0]:g}…{cond['temp_c'][1]:g} °C, {cond['samples']:,} units "
+        f"({cond['dist']}, seed {cond['seed']}, lot share {cond['lot_share']:g})"
+    )
     if has_target:
         w = doc["target"]["window"]
         line = f"[bold]Target[/bold] {target.describe()}"
@@ -233,39 +264,59 @@ def spread_report(result) -> None:
     for message in doc["warnings"]:
         out.print(f"[yellow]Warning:[/yellow] {message}")
     sp = doc["spread"]
-    columns = [{"name": "", "justify": "left", "drop": None}, {"name": "value", "justify": "right", "drop": None},
-               {"name": f"vs {ref_name}", "justify": "right", "drop": None}]
+    columns = [
+        {"name": "", "justify": "left", "drop": None},
+        {"name": "value", "justify": "right", "drop": None},
+        {"name": f"vs {ref_name}", "justify": "right", "drop": None},
+    ]
     rows = []
-    for name, value in (("nominal", doc["nominal"]), ("worst-case min", sp["worst_min"]),
-                        ("worst-case max", sp["worst_max"]), ("MC 0.135 %", sp["p_low"]),
-                        ("MC median", sp["p_median"]), ("MC 99.865 %", sp["p_high"])):
+    for name, value in (
+        ("nominal", doc["nominal"]),
+        ("worst-case min", sp["worst_min"]),
+        ("worst-case max", sp["worst_max"]),
+        ("MC 0.135 %", sp["p_low"]),
+        ("MC median", sp["p_median"]),
+        ("MC 99.865 %", sp["p_high"]),
+    ):
         if value is None:
             rows.append([name, "never", ""])
         else:
             rows.append([name, format_si(value, unit, 4), format_percent(value / ref - 1, 2, signed=True)])
     if sp["sigma"] is not None:
-        rows.append([f"MC σ at {doc['reference_c']:g} °C", format_si(sp["sigma"], unit, 3),
-                     f"{sp['sigma'] / ref * 100:.2f} %"])
+        rows.append(
+            [f"MC σ at {doc['reference_c']:g} °C", format_si(sp["sigma"], unit, 3), f"{sp['sigma'] / ref * 100:.2f} %"]
+        )
     if sp["yield"] is not None:
         ci = sp["yield_ci"]
         rows.append(["yield", f"{sp['yield'] * 100:.2f} %", f"95 %: {ci[0] * 100:.2f}…{ci[1] * 100:.2f} %"])
     if doc.get("period"):
         p = doc["period"]
-        rows += [["charging time", format_si(p["charge_s"], "s", 4), ""],
-                 ["discharging time", format_si(p["discharge_s"], "s", 4), ""],
-                 ["duty cycle (charging)", f"{p['duty_cycle'] * 100:.1f} %", ""]]
+        rows += [
+            ["charging time", format_si(p["charge_s"], "s", 4), ""],
+            ["discharging time", format_si(p["discharge_s"], "s", 4), ""],
+            ["duty cycle (charging)", f"{p['duty_cycle'] * 100:.1f} %", ""],
+        ]
     print_table(out, columns, rows)
     for flag in result.design.flags:
         out.print(f"Note: {flag}.")
     if sp["yield"] is not None:
-        out.print("[dim]Yield: share of units inside the window (or meeting the limit) at every checked temperature, "
-                  "with its 95 % Wilson interval.[/dim]")
+        out.print(
+            "[dim]Yield: share of units inside the window (or meeting the limit) at every checked temperature, "
+            "with its 95 % Wilson interval.[/dim]"
+        )
     out.print("[bold]Contributions[/bold] to the worst-case spread:")
-    share_rows = [[source, f"{share * 100:.1f} %", "▇" * int(round(share * 40))]
-                  for source, share in doc["contributions"].items()]
-    print_table(out, [{"name": "source", "justify": "left", "drop": None},
-                      {"name": "share", "justify": "right", "drop": None},
-                      {"name": "", "justify": "left", "drop": 1}], share_rows)
+    share_rows = [
+        [source, f"{share * 100:.1f} %", "▇" * int(round(share * 40))] for source, share in doc["contributions"].items()
+    ]
+    print_table(
+        out,
+        [
+            {"name": "source", "justify": "left", "drop": None},
+            {"name": "share", "justify": "right", "drop": None},
+            {"name": "", "justify": "left", "drop": 1},
+        ],
+        share_rows,
+    )
     marks = {"worst-case min": sp["worst_min"], "worst-case max": sp["worst_max"], "nominal": doc["nominal"]}
     if has_target:
         w = doc["target"]["window"]

@@ -20,23 +20,48 @@ EPILOG = """[bold]Examples[/bold]
 @o.reports_errors
 def command(
     series_name: str = typer.Argument(..., metavar="SERIES", help="E3, E6, E12, E24, E48, E96 or E192."),
-    low: str = typer.Option(None, "--from", metavar="VALUE", show_default=False,
-                            help="Lowest value (included), e.g. 1k or 1n. Default: 1k, or 1n for capacitors."),
-    high: str = typer.Option(None, "--to", metavar="VALUE", show_default=False,
-                             help="Highest value (included), e.g. 10k. Default: 10 times --from."),
-    around: str = typer.Option(None, "--around", metavar="VALUE", show_default=False,
-                               help="Show the standard values just below and above this value, nearest by ratio "
-                                    "(log distance), with their deviation."),
-    part: str = typer.Option(None, "--part", metavar="resistor|capacitor", show_default=False,
-                             help="resistor or capacitor. Default: guessed from the values' units; resistor."),
-    fmt: str = typer.Option(None, "--format", metavar="table|json|csv", show_default=False,
-                            help="Output: table, json or csv. Default: table."),
+    low: str = typer.Option(
+        None,
+        "--from",
+        metavar="VALUE",
+        show_default=False,
+        help="Lowest value (included), e.g. 1k or 1n. Default: 1k, or 1n for capacitors.",
+    ),
+    high: str = typer.Option(
+        None,
+        "--to",
+        metavar="VALUE",
+        show_default=False,
+        help="Highest value (included), e.g. 10k. Default: 10 times --from.",
+    ),
+    around: str = typer.Option(
+        None,
+        "--around",
+        metavar="VALUE",
+        show_default=False,
+        help="Show the standard values just below and above this value, nearest by ratio "
+        "(log distance), with their deviation.",
+    ),
+    part: str = typer.Option(
+        None,
+        "--part",
+        metavar="resistor|capacitor",
+        show_default=False,
+        help="resistor or capacitor. Default: guessed from the values' units; resistor.",
+    ),
+    fmt: str = typer.Option(
+        None,
+        "--format",
+        metavar="table|json|csv",
+        show_default=False,
+        help="Output: table, json or csv. Default: table.",
+    ),
 ) -> None:
     """List the values of an IEC 60063 E-series, or the neighbours of one value.
 
     Values are the published IEC 60063 decade values (not 10^(i/n)).
     """
-    from rcpick.api import series_values
+    from rcpick.series import series_values
 
     chosen_fmt = o.check_format(fmt)
     document = series_values(series_name, low=low, high=high, around=around, part=part)
@@ -62,8 +87,10 @@ def render(document: dict, rows: list[dict], kind: str) -> None:
     unit = "Ω" if kind == "resistance" else "F"
     title = f"{document['series']} (usual tolerance ±{document['tolerance'] * 100:g} %)"
     if "around" in document:
-        title += f" around {format_si(document['around'], unit, 4, trim=True)}; nearest by ratio: " \
-                 f"{format_rkm(document['closest'], kind)}"
+        title += (
+            f" around {format_si(document['around'], unit, 4, trim=True)}; nearest by ratio: "
+            f"{format_rkm(document['closest'], kind)}"
+        )
     out.print(f"[bold]{title}[/bold]")
     columns = [{"name": "value", "justify": "right", "drop": None}, {"name": "RKM", "justify": "left", "drop": None}]
     if "around" in document:
