@@ -71,13 +71,13 @@ def useful(parts: Parts, combos: Combos | None = None) -> tuple[Combos, np.ndarr
     contributor moves the value by more than the parts' tolerance (docs/model.md)."""
     found = parts.combos if combos is None else combos
     move = contributor_move(found)
-    tol = np.array(
-        [
-            max(_half(parts.model_of(a)), _half(parts.model_of(b)) if not math.isnan(b) else 0.0)
-            for a, b in zip(found.part_a, found.part_b)
-        ]
-    )
-    return subset(found, move > tol)
+    default = _half(parts.model)
+    if not parts.by_value:
+        return subset(found, move > default)
+    stocked = {v: _half(m) for v, m in parts.by_value.items()}
+    tol_a = np.array([stocked.get(float(v), default) for v in found.part_a])
+    tol_b = np.array([stocked.get(float(v), default) if not math.isnan(v) else 0.0 for v in found.part_b])
+    return subset(found, move > np.maximum(tol_a, tol_b))
 
 
 def _half(model: PartModel) -> float:

@@ -80,8 +80,8 @@ def by_yield(s: Scores, rows: np.ndarray) -> list[int]:
         rem = np.array(remaining)
         parts, low, high = s.parts[rem], s.yield_low[rem], s.yield_high[rem]
         # eligible: clearly better than every remaining design with fewer parts (else those go first)
-        eligible = np.array([bool(np.all(low[k] > high[parts < parts[k]])) for k in range(len(rem))])
-        pool = rem[eligible]
+        ceiling = np.array([high[parts < p].max(initial=-np.inf) for p in parts])
+        pool = rem[low > ceiling]
         best = pool[np.argmax(s.yield_[pool])]
         tied = [int(i) for i in pool if s.yield_high[i] >= s.yield_low[best]]
         pick = min(tied, key=lambda i: _tiebreak(s, i))

@@ -334,7 +334,7 @@ def extremes_over_temperature(
     m: int,
     temp_c: tuple[float, float],
     grid: int = 9,
-    iterations: int = 48,
+    iterations: int = 32,
 ) -> tuple[np.ndarray, np.ndarray]:
     """Per design, min of ``func(x, False)`` and max of ``func(x, True)`` over the temperature range.
 

@@ -13,6 +13,7 @@ import inspect
 import json
 import math
 import os
+import re
 import shlex
 import sys
 from collections.abc import Callable
@@ -200,11 +201,80 @@ def width() -> int:
     return PIPE_WIDTH
 
 
-def console():
-    """A rich console on stdout at :func:`width` (imported late to keep start-up short)."""
-    from rich.console import Console
+_STYLES = {"bold": "\x1b[1m", "dim": "\x1b[2m", "yellow": "\x1b[33m"}
+_TAG = re.compile(r"\[(/?)(bold|dim|yellow)\]")
 
-    return Console(highlight=False, width=width(), soft_wrap=False)
+
+class Console:
+    """Lines on stdout at a width: ``[bold]``, ``[dim]`` and ``[yellow]`` shown on a colour terminal, dropped
+    elsewhere (a pipe, a file, NO_COLOR, TERM=dumb); text wrapped at the width unless it is a table line."""
+
+    def __init__(self, width: int, colour: bool):
+        self.width = width
+        self.colour = colour
+
+    def print(self, text: str = "", *, soft_wrap: bool = False, markup: bool = True, **_: Any) -> None:
+        text = str(text)
+        if not markup:
+            sys.stdout.write(text + "\n")
+            return
+        out = []
+        for line in text.split("\n"):
+            if soft_wrap or len(_TAG.sub("", line)) <= self.width:
+                out.append(self._styled(line))
+                continue
+            words = _styled_words(line)
+            current: list[tuple[str, str | None]] = []
+            used = 0
+            for word, style in words:
+                if current and used + 1 + len(word) > self.width:
+                    out.append(self._join(current))
+                    current, used = [], 0
+                used += len(word) + (1 if current else 0)
+                current.append((word, style))
+            out.append(self._join(current))
+        sys.stdout.write("\n".join(out) + "\n")
+
+    def _styled(self, line: str) -> str:
+        """One line as it is, its tags turned into terminal styles (or dropped)."""
+        if not self.colour:
+            return _TAG.sub("", line)
+        return _TAG.sub(lambda m: "\x1b[0m" if m.group(1) else _STYLES[m.group(2)], line)
+
+    def _join(self, words: list[tuple[str, str | None]]) -> str:
+        if not self.colour:
+            return " ".join(w for w, _ in words)
+        parts = []
+        for word, style in words:
+            parts.append(f"{_STYLES[style]}{word}\x1b[0m" if style else word)
+        return " ".join(parts)
+
+
+def _styled_words(line: str) -> list[tuple[str, str | None]]:
+    """Words of a line with the style each is in (``[bold]…[/bold]`` and the like)."""
+    words: list[tuple[str, str | None]] = []
+    style: str | None = None
+    pos = 0
+    pending = ""
+    for match in _TAG.finditer(line):
+        pending += line[pos:match.start()]
+        pieces = pending.split(" ")
+        for k, piece in enumerate(pieces):
+            if k < len(pieces) - 1 or piece:
+                words.append((piece, style))
+        pending = ""
+        style = None if match.group(1) else match.group(2)
+        pos = match.end()
+    for piece in (pending + line[pos:]).split(" "):
+        words.append((piece, style))
+    # glue back the empty pieces a split at a tag boundary leaves (keeps "Head rest" spacing right)
+    return [w for w in words if w[0] != ""] or [("", None)]
+
+
+def console() -> Console:
+    """Where commands print their results (see :class:`Console`)."""
+    colour = sys.stdout.isatty() and "NO_COLOR" not in os.environ and os.environ.get("TERM") != "dumb"
+    return Console(width(), colour)
 
 
 def print_json(document: object) -> None:

@@ -40,9 +40,8 @@ def yield_text(sp: dict) -> str:
 
 
 def cell_width(text: str) -> int:
-    from rich.cells import cell_len
-
-    return cell_len(text)
+    """Columns a text takes in a terminal (every character rcpick prints is one column wide)."""
+    return len(text)
 
 
 def fit(columns: list[dict], rows: list[list[str]], width: int) -> tuple[list[int], list[str]]:
@@ -70,8 +69,6 @@ def fit(columns: list[dict], rows: list[list[str]], width: int) -> tuple[list[in
 
 def print_table(out, columns: list[dict], rows: list[list[str]]) -> list[str]:
     """Print rows under the columns that fit the console, aligned, never cut; return the columns left out."""
-    from rich.text import Text
-
     keep, dropped = fit(columns, rows, out.width)
     widths = [max([cell_width(columns[i]["name"])] + [cell_width(r[i]) for r in rows]) for i in keep]
 
@@ -82,7 +79,7 @@ def print_table(out, columns: list[dict], rows: list[list[str]]) -> list[str]:
             parts.append(pad + text if columns[i]["justify"] == "right" else text + pad)
         return (" " * GAP).join(parts).rstrip()
 
-    out.print(Text(line([columns[i]["name"] for i in keep]), style="bold"), soft_wrap=True)
+    out.print("[bold]" + line([columns[i]["name"] for i in keep]) + "[/bold]", soft_wrap=True)
     out.print("─" * (sum(widths) + GAP * (len(widths) - 1)), soft_wrap=True, markup=False)
     for row in rows:
         out.print(line([row[i] for i in keep]), soft_wrap=True, markup=False, highlight=False)
