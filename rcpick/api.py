@@ -24,7 +24,7 @@ import numpy as np
 from rcpick import assess, combos, ranking, search
 from rcpick import stock as stocks
 from rcpick import variation as engine
-from rcpick.errors import RcpickError, Unreachable
+from rcpick.errors import NotReached, RcpickError, Unreachable
 from rcpick.notation import format_percent, format_si
 from rcpick.results import Candidate, FindResult, NetworkResult, Position, Spread, SpreadResult, finite, part_of
 from rcpick.specs import FindSpec, Layer, NetworkSpec, Plan, SpreadSpec, api_layer, file_layer
@@ -300,6 +300,8 @@ def run_find(
                 progress=step,
             )
         candidates = candidates_of(assessed, plan)
+        if candidates and target.leak_a and candidates[0].r is not None and candidates[0].c is not None:
+            plan.warnings.extend(leak_warnings(target, candidates[0].r.value, candidates[0].c.value, cond.window))
         if len(candidates) < spec.top and pool_info is not None:
             notes.append(
                 f"{len(candidates)} listed: only {pool_info['analysed']} combinations have their nominal "
@@ -334,6 +336,33 @@ def run_find(
         )
     result.warnings = [_spell(w, spec) for w in result.warnings]
     return result
+
+
+def never_text(target, r_ohm: float) -> str:
+    """Why a node never reaches its level (leakage moving the final level past the threshold)."""
+    if target.leak_a and target.scale_v is not None and target.kind == "delay":
+        final = (0.0 if target.falling else target.scale_v) - target.leak_a * r_ohm
+        level = (target.threshold or 0.0) * target.scale_v
+        return (f"with {format_si(target.leak_a, 'A')} of leakage through {format_si(r_ohm, 'Ω', 4)} the node settles "
+                f"at {format_si(final, 'V', 4)} and never reaches {format_si(level, 'V', 4)}; lower R or the leakage")
+    return "the node never reaches the level asked"
+
+
+def leak_warnings(target, r_ohm: float, c_farad: float, window: tuple[float, float]) -> list[str]:
+    """A warning when the leakage moves the nominal timing by more than the window allows."""
+    if not target.leak_a:
+        return []
+    from dataclasses import replace
+
+    with_leak = float(target.quantity(r_ohm, c_farad))
+    without = float(replace(target, leak_a=0.0).quantity(r_ohm, c_farad))
+    shift = with_leak / without - 1.0
+    allowed = min(abs(w) for w in window if w != 0 and math.isfinite(w)) if any(
+        w != 0 and math.isfinite(w) for w in window) else 0.0
+    if allowed and abs(shift) > allowed:
+        return [f"the leakage of {format_si(target.leak_a, 'A')} moves this timing by {shift * 100:+.1f} % (the "
+                f"window allows {allowed * 100:g} %): it matters as much as the parts; check the leakage figure"]
+    return []
 
 
 def _spell(message: str, spec) -> str:
@@ -413,6 +442,9 @@ def candidates_of(assessed: assess.Assessed, plan: Plan) -> list[Candidate]:
         prices = [p.unit_price for p in r_pos.parts + c_pos.parts]
         if prices and all(p is not None for p in prices):
             cost = float(sum(prices))  # type: ignore[arg-type]
+        flags = list(assessed.flags[k])
+        if sp.never:
+            flags.append(f"{sp.never:,} of {assessed.samples:,} simulated units never reach the level")
         out.append(
             Candidate(
                 rank=k + 1,
@@ -424,7 +456,7 @@ def candidates_of(assessed: assess.Assessed, plan: Plan) -> list[Candidate]:
                 c=c_pos,
                 tau_s=r_pos.value * c_pos.value,
                 cost_per_board=cost,
-                flags=tuple(assessed.flags[k]),
+                flags=tuple(flags),
             )
         )
     return out
@@ -520,6 +552,9 @@ def run_spread(
         worst_min, worst_max = (float(v[0]) for v in engine.worst_case(study))
         window_abs = assess.window_of(target, cond.window) if has_target else None
         nominal = float(study.nominal[0])
+        if not math.isfinite(nominal):
+            raise NotReached(never_text(target, r_combo.value[0]), setting="leak" if target.leak_a else "threshold")
+        warnings += leak_warnings(target, float(r_combo.value[0]), float(c_combo.value[0]), cond.window)
         finite_lo = [
             v for v in (worst_min, window_abs[0] if window_abs else None) if v is not None and math.isfinite(v)
         ]
@@ -528,6 +563,8 @@ def run_spread(
         ]
         low_edge = min(finite_lo) if finite_lo else nominal * 0.5
         high_edge = max(finite_hi) if finite_hi else nominal * 1.5
+        if not math.isfinite(worst_max):  # some units may never reach the level: show at least twice the nominal
+            high_edge = max(high_edge, 2.0 * nominal)
         pad = (high_edge - low_edge) * 0.02 or abs(high_edge) * 1e-6
         with _progress(progress, engine.evaluations(1, cond.samples, cond.temp_c)) as step:
             mc = engine.monte_carlo(

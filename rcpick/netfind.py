@@ -33,6 +33,8 @@ from rcpick.specs import Conditions, FindSpec, NetworkSpec, Parts, load_stock, p
 NET_POOL = 12
 #: Worst case: with at most this many parts every corner of their bands is tried; above, all-low and all-high.
 CORNER_PARTS = 6
+#: Temperatures per side of 25 °C at which every corner of a node's delay or corner is evaluated.
+GRID_POINTS = 17
 #: Time points over which a node's range of values is found (for "never reaches" messages).
 RANGE_POINTS = 400
 
@@ -226,9 +228,13 @@ def _level_scale(quantity: netsearch.Quantity, deviation):
 
 
 def worst_case(net: Netlist, design: NetDesign, quantity: netsearch.Quantity, cond: Conditions) -> tuple[float, float]:
-    """Worst case of a network design: band corners (every corner for up to CORNER_PARTS parts; all-low and
-    all-high beyond, and for the dominant time constant, which grows with every part) refined over temperature
-    as for a lone R and C (:func:`rcpick.variation.extremes_over_temperature`)."""
+    """Worst case of a network design.
+
+    The dominant time constant grows with every R and C, so its extremes are the all-low and all-high corners,
+    refined over temperature exactly as for a lone R and C (:func:`rcpick.variation.extremes_over_temperature`).
+    A node's delay or corner frequency is not monotone in general: every corner of the parts' bands (all-low and
+    all-high beyond CORNER_PARTS parts) at GRID_POINTS temperatures per side of 25 °C.
+    """
     flat = design.flat()
     if quantity.kind == "tau" or len(flat) > CORNER_PARTS:
         corners = np.array([[False] * len(flat), [True] * len(flat)])
@@ -252,18 +258,25 @@ def worst_case(net: Netlist, design: NetDesign, quantity: netsearch.Quantity, co
     lows: list[float] = []
     highs: list[float] = []
     for a, b in variation._sides(cond.temp_c):
-        grid = np.linspace(a, b, 9 if b > a else 1)
-        for level in levels:
-            table = evaluate(grid, corners, level)
-            for upper in (False, True):
-                pick = int(np.argmax(table.max(axis=1)) if upper else np.argmin(table.min(axis=1)))
-                row = corners[pick : pick + 1]
+        if quantity.kind != "tau":
+            # a node's delay or corner: every corner on a fine grid of temperatures, in one batch (a method,
+            # not a proof; the Monte Carlo extremes are folded in by the caller)
+            grid = np.linspace(a, b, GRID_POINTS if b > a else 1)
+            for level in levels:
+                table = evaluate(grid, corners, level)
+                lows.append(float(table.min()))
+                highs.append(float(table.max()))
+            continue
+        # the dominant time constant grows with every part: all-low and all-high, refined over temperature
+        # exactly as for a lone R and C (so one R and one C repeat it)
+        for upper in (False, True):
+            row = corners[1:2] if upper else corners[0:1]
 
-                def func(x, up, row=row, level=level):
-                    return evaluate(x[0], row, level)[0][None, :]
+            def func(x, up, row=row):
+                return evaluate(x[0], row, 0.0)[0][None, :]
 
-                lo, hi = variation.extremes_over_temperature(func, 1, (a + ROOM_C, b + ROOM_C))
-                (highs if upper else lows).append(float(hi[0] if upper else lo[0]))
+            lo, hi = variation.extremes_over_temperature(func, 1, (a + ROOM_C, b + ROOM_C))
+            (highs if upper else lows).append(float(hi[0] if upper else lo[0]))
     return min(lows), max(highs)
 
 

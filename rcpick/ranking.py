@@ -19,8 +19,8 @@ from dataclasses import dataclass
 import numpy as np
 
 RANKINGS = ("yield", "error", "spread", "cost")
-#: Relative worst-case spans closer than this count as equal (0.01 % of nominal).
-SPAN_DECIMALS = 4
+#: Relative worst-case spans closer than this count as equal (0.1 % of nominal).
+SPAN_DECIMALS = 3
 ERROR_DECIMALS = 12
 
 RULES = {

@@ -414,7 +414,7 @@ class SpreadResult(_Saves):
     design: Candidate
     window: tuple[float, float] | None
     nominal: float
-    contributions: dict[str, float]
+    contributions: dict[str, float | None]
     histogram: tuple[list[float], list[int]]
     temperatures_c: list[float]
     reference_c: float

@@ -823,7 +823,7 @@ class SpreadSpec(PartSettings, Spec):
     def check(self) -> None:
         if self.r is None or self.c is None:
             missing = "r" if self.r is None else "c"
-            raise ClashingOptions(f"{{{missing}}} is required: the design to analyse", setting=missing)
+            raise ClashingOptions("required: the design to analyse (one part, or two wired in series or parallel)", setting=missing)
         kind = self._one_target(allow_none=True)
         self._check_target(kind)
         if kind is None:
@@ -845,6 +845,6 @@ class NetworkSpec(Spec):
 
     def check(self) -> None:
         if self.file is None:
-            raise ClashingOptions("{file} is required: the netlist to analyse", setting="file")
+            raise ClashingOptions("required: the netlist to analyse", setting="file")
         if self.threshold is not None and self.node is None:
             raise ClashingOptions("{threshold} needs {node} (the node whose crossing is timed)", setting="threshold")

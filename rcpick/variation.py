@@ -372,8 +372,9 @@ def worst_case(study: Study) -> tuple[np.ndarray, np.ndarray]:
     return extremes_over_temperature(lambda x, upper: _quantity_extreme(study, x, upper), len(study.r), study.temp_c)
 
 
-def contributions(study: Study) -> list[dict[str, float]]:
-    """Share of the worst-case spread due to each source, per design (shares add up to 1).
+def contributions(study: Study) -> list[dict[str, float | None]]:
+    """Share of the worst-case spread due to each source, per design (shares add up to 1; None when the worst
+    case never reaches the level, so that no share is defined).
 
     Each source's weight is the worst-case span of log(quantity) with only that
     source active; a fixed shift (bias loss) counts by its size.
@@ -398,11 +399,13 @@ def contributions(study: Study) -> list[dict[str, float]]:
         with np.errstate(divide="ignore", invalid="ignore"):
             weights[source] = np.log(np.maximum(hi, nominal)) - np.log(np.minimum(lo, nominal))
     total = sum(weights.values())
-    out = []
+    out: list[dict[str, float | None]] = []
     for m in range(len(nominal)):
         t = float(total[m])
-        ok = math.isfinite(t) and t > 0
-        out.append({s: (float(w[m]) / t if ok else 0.0) for s, w in weights.items()})
+        if not math.isfinite(t):  # some corner never reaches the level: shares are not defined
+            out.append(dict.fromkeys(weights))
+            continue
+        out.append({s: (float(w[m]) / t if t > 0 else 0.0) for s, w in weights.items()})
     return out
 
 
@@ -454,11 +457,14 @@ def unit_summary(
     ``lows``/``highs`` are each unit's minimum and maximum over the checked temperatures, ``refs`` its value
     at the reference temperature; a level never reached is +inf.
     """
-    out = {
-        "p_low": np.quantile(lows, P_LOW, axis=1),
-        "p_high": np.quantile(highs, P_HIGH, axis=1),
-        "p_median": np.median(refs, axis=1),
-    }
+    with np.errstate(invalid="ignore"):  # inf − inf between neighbours of a never-reached unit: that point is inf
+        out = {
+            "p_low": np.quantile(lows, P_LOW, axis=1),
+            "p_high": np.quantile(highs, P_HIGH, axis=1),
+            "p_median": np.median(refs, axis=1),
+        }
+    for name in ("p_low", "p_high", "p_median"):
+        out[name] = np.where(np.isnan(out[name]), np.inf, out[name])
     finite = np.isfinite(refs).all(axis=1)
     with np.errstate(invalid="ignore"):
         out["sigma"] = np.where(finite, np.std(np.where(np.isfinite(refs), refs, 0.0), axis=1, ddof=1), np.inf)

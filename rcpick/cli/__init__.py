@@ -9,6 +9,7 @@ one line in rcpick's form and exits with code 2.
 from __future__ import annotations
 
 import importlib
+import re
 import sys
 import warnings
 from typing import Any
@@ -105,18 +106,29 @@ class LazyGroup(TyperGroup):
         return code
 
 
+_REWORDED = [
+    (re.compile(r"No such option: (\S+)"), "{0}: no such option{hint}"),
+    (re.compile(r"Option '(\S+)' requires an argument"), "{0}: needs a value{hint}"),
+    (re.compile(r"Option '(\S+)' does not take a value"), "{0}: is a switch and takes no value{hint}"),
+    (re.compile(r"No such command '(\S+)'"), "{0!r} is not a command; the commands are " + ", ".join(COMMANDS)),
+    (re.compile(r"Got unexpected extra argument(?:s|\(s\))? \((.*)\)"), "unexpected argument(s) {0!r}{hint}"),
+    (re.compile(r"Missing argument '(\S+)'"), "{0}: required{hint}"),
+    (re.compile(r"Missing option '(\S+)'"), "{0}: required{hint}"),
+]
+
+
 def _usage_text(error: Any) -> str:
+    """The option parser's usage error in rcpick's own words, on one line."""
     message = _one_line(error.format_message())
-    param = getattr(error, "param", None)
-    flag = max(param.opts, key=len) if param is not None and getattr(param, "opts", None) else None
-    if flag and flag not in message:
-        message = f"{flag}: {message}"
-    hint = ""
-    ctx = getattr(error, "ctx", None)
-    if ctx is not None and ctx.command is not None and ctx.info_name:
-        path = ctx.command_path if hasattr(ctx, "command_path") else "rcpick"
-        hint = f" (see {path} --help)"
-    return message.rstrip(".") + hint
+    typed = options.TYPED
+    path = f"rcpick {typed[0]}" if typed and typed[0] in COMMANDS else "rcpick"
+    possible = [p for p in (getattr(error, "possibilities", None) or []) if p]
+    hint = f"; did you mean {' or '.join(possible[:3])}?" if possible else f" (see {path} --help)"
+    for pattern, text in _REWORDED:
+        found = pattern.search(message)
+        if found:
+            return text.format(*found.groups(), hint=hint)
+    return f"{message.rstrip('.')} (see {path} --help)"
 
 
 app = typer.Typer(

@@ -25,7 +25,7 @@ def _rel(value: float | None, target: float) -> str:
 
 
 def _span(lo: float | None, hi: float | None, target: float) -> str:
-    return f"{_rel(lo, target)} … {_rel(hi, target)}"
+    return f"{_rel(lo, target)}…{_rel(hi, target)}"
 
 
 def yield_text(sp: dict) -> str:
@@ -303,7 +303,8 @@ def spread_report(result) -> None:
         )
     out.print("[bold]Contributions[/bold] to the worst-case spread:")
     share_rows = [
-        [source, f"{share * 100:.1f} %", "▇" * int(round(share * 40))] for source, share in doc["contributions"].items()
+        [source, "–" if share is None else f"{share * 100:.1f} %", "" if share is None else "▇" * int(round(share * 40))]
+        for source, share in doc["contributions"].items()
     ]
     print_table(
         out,
