@@ -343,8 +343,10 @@ def never_text(target, r_ohm: float) -> str:
     if target.leak_a and target.scale_v is not None and target.kind == "delay":
         final = (0.0 if target.falling else target.scale_v) - target.leak_a * r_ohm
         level = (target.threshold or 0.0) * target.scale_v
-        return (f"with {format_si(target.leak_a, 'A')} of leakage through {format_si(r_ohm, 'Ω', 4)} the node settles "
-                f"at {format_si(final, 'V', 4)} and never reaches {format_si(level, 'V', 4)}; lower R or the leakage")
+        return (
+            f"with {format_si(target.leak_a, 'A')} of leakage through {format_si(r_ohm, 'Ω', 4)} the node settles "
+            f"at {format_si(final, 'V', 4)} and never reaches {format_si(level, 'V', 4)}; lower R or the leakage"
+        )
     return "the node never reaches the level asked"
 
 
@@ -357,11 +359,16 @@ def leak_warnings(target, r_ohm: float, c_farad: float, window: tuple[float, flo
     with_leak = float(target.quantity(r_ohm, c_farad))
     without = float(replace(target, leak_a=0.0).quantity(r_ohm, c_farad))
     shift = with_leak / without - 1.0
-    allowed = min(abs(w) for w in window if w != 0 and math.isfinite(w)) if any(
-        w != 0 and math.isfinite(w) for w in window) else 0.0
+    allowed = (
+        min(abs(w) for w in window if w != 0 and math.isfinite(w))
+        if any(w != 0 and math.isfinite(w) for w in window)
+        else 0.0
+    )
     if allowed and abs(shift) > allowed:
-        return [f"the leakage of {format_si(target.leak_a, 'A')} moves this timing by {shift * 100:+.1f} % (the "
-                f"window allows {allowed * 100:g} %): it matters as much as the parts; check the leakage figure"]
+        return [
+            f"the leakage of {format_si(target.leak_a, 'A')} moves this timing by {shift * 100:+.1f} % (the "
+            f"window allows {allowed * 100:g} %): it matters as much as the parts; check the leakage figure"
+        ]
     return []
 
 

@@ -465,8 +465,7 @@ def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> Fi
                 odd = [p for p in d.parts[name] if not low * (1 - 1e-9) <= p.value <= high * (1 + 1e-9)]
                 if odd:
                     f.append(
-                        f"{', '.join(_value_text(p) for p in odd)} "
-                        f"is outside the practical range of its part family"
+                        f"{', '.join(_value_text(p) for p in odd)} is outside the practical range of its part family"
                     )
             flags.append(f)
         inside = (w_lo >= window[0] * (1 - 1e-12)) & (w_hi <= window[1] * (1 + 1e-12))

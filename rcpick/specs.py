@@ -392,8 +392,13 @@ class PartSettings:
         s: Any = self
         if s.dielectric is not None:
             return s.dielectric, None
-        if target is not None and target.kind == "delay" and target.falling and target.scale_v is not None \
-                and target.scale_v > BANK_VOLTS:
+        if (
+            target is not None
+            and target.kind == "delay"
+            and target.falling
+            and target.scale_v is not None
+            and target.scale_v > BANK_VOLTS
+        ):
             return "ELECTROLYTIC", (
                 f"a bank discharging from {format_si(target.scale_v, 'V', 3)} is modelled as "
                 f"aluminium electrolytic (±20 %); give {{dielectric}} PP (film) or the bank's "
@@ -823,7 +828,9 @@ class SpreadSpec(PartSettings, Spec):
     def check(self) -> None:
         if self.r is None or self.c is None:
             missing = "r" if self.r is None else "c"
-            raise ClashingOptions("required: the design to analyse (one part, or two wired in series or parallel)", setting=missing)
+            raise ClashingOptions(
+                "required: the design to analyse (one part, or two wired in series or parallel)", setting=missing
+            )
         kind = self._one_target(allow_none=True)
         self._check_target(kind)
         if kind is None:

@@ -303,7 +303,11 @@ def spread_report(result) -> None:
         )
     out.print("[bold]Contributions[/bold] to the worst-case spread:")
     share_rows = [
-        [source, "–" if share is None else f"{share * 100:.1f} %", "" if share is None else "▇" * int(round(share * 40))]
+        [
+            source,
+            "–" if share is None else f"{share * 100:.1f} %",
+            "" if share is None else "▇" * int(round(share * 40)),
+        ]
         for source, share in doc["contributions"].items()
     ]
     print_table(

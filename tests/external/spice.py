@@ -20,11 +20,13 @@ LEAK_OHM = 1e15  # gives the node between two series capacitors a DC path; negli
 
 
 def ngspice() -> str:
-    """Path of ngspice. Missing ngspice fails under CI (CI set, as .ci/run does) and skips, with the reason, elsewhere."""
+    """Path of ngspice. Missing ngspice fails under CI (CI set, as .ci/run does); elsewhere it skips, saying why."""
     path = shutil.which("ngspice")
     if path is None:
         if os.environ.get("CI"):
-            pytest.fail("ngspice is required for the external checks in CI (apt-get install -y ngspice; .ci/run does this)")
+            pytest.fail(
+                "ngspice is required for the external checks in CI (apt-get install -y ngspice; .ci/run does this)"
+            )
         pytest.skip("ngspice not installed: apt-get install -y ngspice to run the simulator cross-checks")
     return path
 
@@ -65,6 +67,7 @@ def run_measure(netlist: str, workdir: Path, name: str) -> float:
 
 # --- helpers for start levels, leakage, oscillators and netlists with initial voltages ----------------
 
+
 def run_measures(netlist: str, workdir: Path, names: list[str]) -> dict[str, float]:
     """Run ngspice in batch mode once and return the values of several ``.meas`` results by name."""
     cir = workdir / "check.cir"
@@ -95,8 +98,17 @@ def _with_initial_voltages(lines: list[str], v0: float) -> list[str]:
     return [f"{line} IC={share[line]!r}" if line in share else line for line in lines]
 
 
-def rc_level_netlist(r: dict, c: dict, v_source: float, v0: float, stop_s: float, measures: list[str], *,
-                     leak_a: float = 0.0, start: str = "ic") -> str:
+def rc_level_netlist(
+    r: dict,
+    c: dict,
+    v_source: float,
+    v0: float,
+    stop_s: float,
+    measures: list[str],
+    *,
+    leak_a: float = 0.0,
+    start: str = "ic",
+) -> str:
     """R from a constant source ``v_source`` to node ``out``, C from ``out`` to ground holding v0 at t = 0.
 
     ``start="ic"``: ``.ic v(out)=v0`` (ngspice solves the operating point with the node held at v0,
@@ -121,8 +133,9 @@ def rc_level_netlist(r: dict, c: dict, v_source: float, v0: float, stop_s: float
     return "\n".join(lines + list(measures) + [".end", ""])
 
 
-def relaxation_netlist(r: dict, c: dict, supply: float, low: float, high: float, stop_s: float,
-                       measures: list[str], *, leak_a: float = 0.0) -> str:
+def relaxation_netlist(
+    r: dict, c: dict, supply: float, low: float, high: float, stop_s: float, measures: list[str], *, leak_a: float = 0.0
+) -> str:
     """An RC relaxation oscillator: node ``drv`` is ``supply`` while the capacitor charges and 0 V while it
     discharges, switching where v(out) reaches ``high`` and ``low``.
 
@@ -132,15 +145,24 @@ def relaxation_netlist(r: dict, c: dict, supply: float, low: float, high: float,
     the supply or of 0 V. The run starts at v(out) = low, charging.
     """
     vt, vh = (high + low) / 2, (high - low) / 2
-    lines = ["* rcpick relaxation oscillator check", f"VS vdd 0 DC {supply!r}", "RPU sw vdd 1e3",
-             "S1 sw 0 out 0 hyst", f".model hyst sw vt={vt!r} vh={vh!r} ron=1e-6 roff=1e12", "EDRV drv 0 sw 0 1"]
+    lines = [
+        "* rcpick relaxation oscillator check",
+        f"VS vdd 0 DC {supply!r}",
+        "RPU sw vdd 1e3",
+        "S1 sw 0 out 0 hyst",
+        f".model hyst sw vt={vt!r} vh={vh!r} ron=1e-6 roff=1e12",
+        "EDRV drv 0 sw 0 1",
+    ]
     lines += position_lines("R", r["arrangement"], r["parts_ohm"], "drv", "out")
     lines += position_lines("C", c["arrangement"], c["parts_farad"], "out", "0")
     if leak_a:
         lines.append(f"IL out 0 DC {leak_a!r}")
     step = stop_s / 40000
-    lines += [".options reltol=1e-6", f".ic v(out)={low!r} v(sw)={supply!r} v(drv)={supply!r}",
-              f".tran {step!r} {stop_s!r} 0 {step!r} uic"]
+    lines += [
+        ".options reltol=1e-6",
+        f".ic v(out)={low!r} v(sw)={supply!r} v(drv)={supply!r}",
+        f".tran {step!r} {stop_s!r} 0 {step!r} uic",
+    ]
     return "\n".join(lines + list(measures) + [".end", ""])
 
 

@@ -24,19 +24,41 @@ def _pick(doc):
 
 
 def test_rising_delay_matches_ngspice(run_json, tmp_path):
-    doc = run_json("find", "--delay", "3.7ms", "--threshold", "2.0V", "--supply", "3.3V", "--top", "40", "--rank", "error")
+    doc = run_json(
+        "find", "--delay", "3.7ms", "--threshold", "2.0V", "--supply", "3.3V", "--top", "40", "--rank", "error"
+    )
     for cand in _pick(doc):
-        netlist = rc_step_netlist(cand["r"], cand["c"], 0.0, 3.3, 3 * cand["value"],
-                                  ".meas tran tcross WHEN v(out)=2.0 RISE=1")
+        netlist = rc_step_netlist(
+            cand["r"], cand["c"], 0.0, 3.3, 3 * cand["value"], ".meas tran tcross WHEN v(out)=2.0 RISE=1"
+        )
         simulated = run_measure(netlist, tmp_path, "tcross")
         assert simulated == pytest.approx(cand["value"], rel=5e-3), cand
 
 
 def test_falling_delay_matches_ngspice(run_json, tmp_path):
-    doc = run_json("find", "--delay", "1.5s", "--threshold", "50V", "--supply", "400V", "--falling",
-                   "--c-min", "10u", "--c-max", "100u", "--r-max", "1Meg", "--top", "40", "--rank", "error")
+    doc = run_json(
+        "find",
+        "--delay",
+        "1.5s",
+        "--threshold",
+        "50V",
+        "--supply",
+        "400V",
+        "--falling",
+        "--c-min",
+        "10u",
+        "--c-max",
+        "100u",
+        "--r-max",
+        "1Meg",
+        "--top",
+        "40",
+        "--rank",
+        "error",
+    )
     for cand in _pick(doc):
-        netlist = rc_step_netlist(cand["r"], cand["c"], 400.0, 0.0, 3 * cand["value"],
-                                  ".meas tran tcross WHEN v(out)=50 FALL=1")
+        netlist = rc_step_netlist(
+            cand["r"], cand["c"], 400.0, 0.0, 3 * cand["value"], ".meas tran tcross WHEN v(out)=50 FALL=1"
+        )
         simulated = run_measure(netlist, tmp_path, "tcross")
         assert simulated == pytest.approx(cand["value"], rel=5e-3), cand

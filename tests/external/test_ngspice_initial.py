@@ -52,8 +52,10 @@ def _simulate(text: str, node: str, level: float, v0: float, t_ours: float, tmp_
     """
     direction = "RISE" if level > v0 else "FALL"
     stop = 2 * t_ours
-    measures = [f".meas tran vstart FIND v({node}) AT={stop * 1e-5!r}",
-                f".meas tran tx WHEN v({node})={level!r} {direction}=1"]
+    measures = [
+        f".meas tran vstart FIND v({node}) AT={stop * 1e-5!r}",
+        f".meas tran tx WHEN v({node})={level!r} {direction}=1",
+    ]
     got = run_measures(network_netlist(text, stop, measures, replace), tmp_path, ["vstart", "tx"])
     return got["vstart"], got["tx"]
 
@@ -104,8 +106,20 @@ def test_find_in_bank_matches_ngspice(tmp_path):
     nominal delay; the delay also against Kuphaldt Vol. I ch. 16 with OpenStax §21.1's series/parallel rules."""
     path = tmp_path / "bank.cir"
     path.write_text(BANK)
-    result = rcpick.find(net=path, vary="R1,C1", delay="10s", threshold="50V", node="bank", rank="error", top=3,
-                         samples=200, r_min="10k", r_max="1Meg", c_min="10u", c_max="100u")
+    result = rcpick.find(
+        net=path,
+        vary="R1,C1",
+        delay="10s",
+        threshold="50V",
+        node="bank",
+        rank="error",
+        top=3,
+        samples=200,
+        r_min="10k",
+        r_max="1Meg",
+        c_min="10u",
+        c_max="100u",
+    )
     candidates = [c.to_dict() for c in result.candidates]
     _pairs_included(candidates)
     for cand in candidates:
@@ -122,8 +136,20 @@ def test_find_in_precharged_network_matches_ngspice(tmp_path):
     text, node, _ = NETWORKS["precharged, source"]
     path = tmp_path / "pre.cir"
     path.write_text(text)
-    result = rcpick.find(net=path, vary="R1,C1", delay="50ms", threshold="8V", node=node, rank="error", top=3,
-                         samples=200, r_parts=1, c_parts=1, r_min="1k", r_max="22k")
+    result = rcpick.find(
+        net=path,
+        vary="R1,C1",
+        delay="50ms",
+        threshold="8V",
+        node=node,
+        rank="error",
+        top=3,
+        samples=200,
+        r_parts=1,
+        c_parts=1,
+        r_min="1k",
+        r_max="22k",
+    )
     for cand in (c.to_dict() for c in result.candidates):
         _, t_cross = _simulate(text, node, 8.0, 3.0, cand["value"], tmp_path, replace=cand["elements"])
         assert t_cross == pytest.approx(cand["value"], rel=SIM_REL), cand

@@ -34,8 +34,16 @@ def kuphaldt_delay(tau: float, v_final: float, v0: float, v1: float) -> float:
 def _simulate(cand: dict, v_source: float, v0: float, v1: float, tmp_path, *, leak_a=0.0, start="ic") -> float:
     """ngspice 39.x (Debian package ngspice): time for v(out) to go from v0 to v1, source at v_source."""
     direction = "RISE" if v1 > v0 else "FALL"
-    netlist = rc_level_netlist(cand["r"], cand["c"], v_source, v0, 2 * cand["value"],
-                               [f".meas tran tcross WHEN v(out)={v1!r} {direction}=1"], leak_a=leak_a, start=start)
+    netlist = rc_level_netlist(
+        cand["r"],
+        cand["c"],
+        v_source,
+        v0,
+        2 * cand["value"],
+        [f".meas tran tcross WHEN v(out)={v1!r} {direction}=1"],
+        leak_a=leak_a,
+        start=start,
+    )
     return run_measure(netlist, tmp_path, "tcross")
 
 
@@ -43,14 +51,39 @@ def _simulate(cand: dict, v_source: float, v0: float, v1: float, tmp_path, *, le
 
 FROM_CASES = {
     # name: (find keywords, source volts, start volts, threshold volts)
-    "rising 1.1 V to 2.2 V of 3.3 V": (dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V"),
-                                       3.3, 1.1, 2.2),
-    "rising 0.5 V to 4.0 V of 5 V": (dict(delay="22ms", threshold="4.0V", from_level="0.5V", supply="5V"),
-                                     5.0, 0.5, 4.0),
-    "falling 300 V to 50 V": (dict(delay="1.5s", threshold="50V", from_level="300V", supply="400V", falling=True,
-                                   c_min="10u", c_max="100u", r_max="1Meg"), 0.0, 300.0, 50.0),
-    "falling 3.0 V to 1.0 V": (dict(delay="4.7ms", threshold="1.0V", from_level="3.0V", supply="3.3V",
-                                    falling=True), 0.0, 3.0, 1.0),
+    "rising 1.1 V to 2.2 V of 3.3 V": (
+        dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V"),
+        3.3,
+        1.1,
+        2.2,
+    ),
+    "rising 0.5 V to 4.0 V of 5 V": (
+        dict(delay="22ms", threshold="4.0V", from_level="0.5V", supply="5V"),
+        5.0,
+        0.5,
+        4.0,
+    ),
+    "falling 300 V to 50 V": (
+        dict(
+            delay="1.5s",
+            threshold="50V",
+            from_level="300V",
+            supply="400V",
+            falling=True,
+            c_min="10u",
+            c_max="100u",
+            r_max="1Meg",
+        ),
+        0.0,
+        300.0,
+        50.0,
+    ),
+    "falling 3.0 V to 1.0 V": (
+        dict(delay="4.7ms", threshold="1.0V", from_level="3.0V", supply="3.3V", falling=True),
+        0.0,
+        3.0,
+        1.0,
+    ),
 }
 
 
@@ -70,8 +103,14 @@ SPREAD_DESIGNS = [
     # (r, c, spread keywords, source volts, start volts, threshold volts)
     ("4k7+330", "47n//47n", dict(delay="330us", threshold="2.2V", from_level="1.1V", supply="3.3V"), 3.3, 1.1, 2.2),
     ("100k", "220n+220n", dict(delay="10ms", threshold="2.5V", from_level="0.3V", supply="3.3V"), 3.3, 0.3, 2.5),
-    ("150k//150k", "10u", dict(delay="0.8s", threshold="1.0V", from_level="3.0V", supply="3.3V", falling=True),
-     0.0, 3.0, 1.0),
+    (
+        "150k//150k",
+        "10u",
+        dict(delay="0.8s", threshold="1.0V", from_level="3.0V", supply="3.3V", falling=True),
+        0.0,
+        3.0,
+        1.0,
+    ),
 ]
 
 
@@ -103,14 +142,34 @@ def test_start_level_changes_the_delay():
 # reach is outside this check).
 LEAK_CASES = {
     # name: (find keywords, source volts, start volts, threshold volts, leak A)
-    "rising, 20 uA drawn out": (dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="20uA",
-                                     r_max="33k"), 3.3, 1.1, 2.2, 20e-6),
-    "rising, 20 uA injected": (dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="-20uA"),
-                               3.3, 1.1, 2.2, -20e-6),
-    "falling, 5 uA drawn out": (dict(delay="50ms", threshold="1.0V", supply="3.3V", falling=True, leak="5uA"),
-                                0.0, 3.3, 1.0, 5e-6),
-    "falling, 5 uA injected": (dict(delay="50ms", threshold="1.0V", supply="3.3V", falling=True, leak="-5uA",
-                                    r_max="100k"), 0.0, 3.3, 1.0, -5e-6),
+    "rising, 20 uA drawn out": (
+        dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="20uA", r_max="33k"),
+        3.3,
+        1.1,
+        2.2,
+        20e-6,
+    ),
+    "rising, 20 uA injected": (
+        dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="-20uA"),
+        3.3,
+        1.1,
+        2.2,
+        -20e-6,
+    ),
+    "falling, 5 uA drawn out": (
+        dict(delay="50ms", threshold="1.0V", supply="3.3V", falling=True, leak="5uA"),
+        0.0,
+        3.3,
+        1.0,
+        5e-6,
+    ),
+    "falling, 5 uA injected": (
+        dict(delay="50ms", threshold="1.0V", supply="3.3V", falling=True, leak="-5uA", r_max="100k"),
+        0.0,
+        3.3,
+        1.0,
+        -5e-6,
+    ),
 }
 
 
@@ -134,12 +193,25 @@ def test_leak_candidates_match_ngspice(name, tmp_path):
 
 LEAK_DESIGNS = [
     # (r, c, spread keywords, source volts, start volts, threshold volts, leak A)
-    ("47k", "22n", dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="10uA"),
-     3.3, 1.1, 2.2, 10e-6),
-    ("47k", "22n", dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="-10uA"),
-     3.3, 1.1, 2.2, -10e-6),
-    ("1M", "4u7", dict(delay="3s", threshold="50V", supply="400V", falling=True, leak="40uA"),
-     0.0, 400.0, 50.0, 40e-6),
+    (
+        "47k",
+        "22n",
+        dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="10uA"),
+        3.3,
+        1.1,
+        2.2,
+        10e-6,
+    ),
+    (
+        "47k",
+        "22n",
+        dict(delay="1ms", threshold="2.2V", from_level="1.1V", supply="3.3V", leak="-10uA"),
+        3.3,
+        1.1,
+        2.2,
+        -10e-6,
+    ),
+    ("1M", "4u7", dict(delay="3s", threshold="50V", supply="400V", falling=True, leak="40uA"), 0.0, 400.0, 50.0, 40e-6),
 ]
 
 

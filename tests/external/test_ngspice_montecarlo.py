@@ -53,7 +53,26 @@ def test_sigma_matches_ngspice_monte_carlo(run_json, tmp_path):
     assert len(times) == RUNS, done.stdout[-2000:]
     mean = sum(times) / RUNS
     spice_sigma = math.sqrt(sum((t - mean) ** 2 for t in times) / (RUNS - 1))
-    doc = run_json("spread", "--r", "10k", "--c", "100n", "--r-tol", "5%", "--c-tol", "10%", "--r-tcr", "0ppm",
-                   "--c-tc", "0ppm", "--temp", "25", "--dist", "normal", "--samples", "200000")
+    doc = run_json(
+        "spread",
+        "--r",
+        "10k",
+        "--c",
+        "100n",
+        "--r-tol",
+        "5%",
+        "--c-tol",
+        "10%",
+        "--r-tcr",
+        "0ppm",
+        "--c-tc",
+        "0ppm",
+        "--temp",
+        "25",
+        "--dist",
+        "normal",
+        "--samples",
+        "200000",
+    )
     assert mean == pytest.approx(R_OHM * C_FARAD, rel=0.02)
     assert doc["spread"]["sigma"] == pytest.approx(spice_sigma, rel=0.15)

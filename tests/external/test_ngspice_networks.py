@@ -24,7 +24,13 @@ def spice_text(text: str, stop_s: float, measures: list[str]) -> str:
             lines.append(f"{e.name} {e.a} {e.b} PWL(0 0 1e-12 {e.value!r})")
         else:
             lines.append(f"{e.name} {e.a} {e.b} {e.value!r}")
-    lines += [".options reltol=1e-6", f".tran {stop_s / 20000!r} {stop_s!r} 0 {stop_s / 20000!r}", *measures, ".end", ""]
+    lines += [
+        ".options reltol=1e-6",
+        f".tran {stop_s / 20000!r} {stop_s!r} 0 {stop_s / 20000!r}",
+        *measures,
+        ".end",
+        "",
+    ]
     return "\n".join(lines)
 
 
@@ -38,8 +44,9 @@ def test_crossing_times_match_ngspice(name, tmp_path):
     tau = float(nodal.time_constants(net)[0][0])
     ours = float(nodal.crossing_time(resp, node, np.array([level]), np.array([30 * tau]))[0])
     direction = "RISE" if v_final > v0 else "FALL"
-    spice = run_measure(spice_text(text, 4 * ours, [f".meas tran tx WHEN v({node})={level!r} {direction}=1"]),
-                        tmp_path, "tx")
+    spice = run_measure(
+        spice_text(text, 4 * ours, [f".meas tran tx WHEN v({node})={level!r} {direction}=1"]), tmp_path, "tx"
+    )
     assert spice == pytest.approx(ours, rel=5e-3)
 
 

@@ -44,24 +44,43 @@ def kuphaldt_halves(tau: float, r_ohm: float, supply: float, low: float, high: f
     """T. Kuphaldt, Lessons in Electric Circuits Vol. I ch. 16, t = τ·ln((V∞ − V0)/(V∞ − V1)) for each half,
     V∞ = supply − I·R charging and −I·R discharging."""
     drop = leak_a * r_ohm
-    return (tau * math.log((supply - drop - low) / (supply - drop - high)),
-            tau * math.log((0 - drop - high) / (0 - drop - low)))
+    return (
+        tau * math.log((supply - drop - low) / (supply - drop - high)),
+        tau * math.log((0 - drop - high) / (0 - drop - low)),
+    )
 
 
-def _two_intervals(r: dict, c: dict, supply: float, low: float, high: float, expected: tuple[float, float],
-                   tmp_path, leak_a: float = 0.0) -> tuple[float, float]:
+def _two_intervals(
+    r: dict,
+    c: dict,
+    supply: float,
+    low: float,
+    high: float,
+    expected: tuple[float, float],
+    tmp_path,
+    leak_a: float = 0.0,
+) -> tuple[float, float]:
     """ngspice 39.x (Debian package ngspice): charge LOW → HIGH from the supply, discharge HIGH → LOW to 0 V."""
-    charge = run_measure(rc_level_netlist(r, c, supply, low, 2 * expected[0],
-                                          [f".meas tran thalf WHEN v(out)={high!r} RISE=1"], leak_a=leak_a),
-                         tmp_path, "thalf")
-    discharge = run_measure(rc_level_netlist(r, c, 0.0, high, 2 * expected[1],
-                                             [f".meas tran thalf WHEN v(out)={low!r} FALL=1"], leak_a=leak_a),
-                            tmp_path, "thalf")
+    charge = run_measure(
+        rc_level_netlist(
+            r, c, supply, low, 2 * expected[0], [f".meas tran thalf WHEN v(out)={high!r} RISE=1"], leak_a=leak_a
+        ),
+        tmp_path,
+        "thalf",
+    )
+    discharge = run_measure(
+        rc_level_netlist(
+            r, c, 0.0, high, 2 * expected[1], [f".meas tran thalf WHEN v(out)={low!r} FALL=1"], leak_a=leak_a
+        ),
+        tmp_path,
+        "thalf",
+    )
     return charge, discharge
 
 
-def _oscillator(r: dict, c: dict, supply: float, low: float, high: float, period: float, tmp_path,
-                leak_a: float = 0.0) -> dict[str, float]:
+def _oscillator(
+    r: dict, c: dict, supply: float, low: float, high: float, period: float, tmp_path, leak_a: float = 0.0
+) -> dict[str, float]:
     """ngspice 39.x (Debian package ngspice), a switch with hysteresis: period and halves after the first cycle.
 
     The run starts at LOW, charging, so the drive node falls at HIGH (FALL=1), rises at LOW (RISE=1), and so on:
@@ -69,12 +88,17 @@ def _oscillator(r: dict, c: dict, supply: float, low: float, high: float, period
     """
     mid = supply / 2
     names = ["f2", "r2", "f3", "r3", "vhigh", "vlow"]
-    measures = [f".meas tran f2 WHEN v(drv)={mid!r} FALL=2", f".meas tran r2 WHEN v(drv)={mid!r} RISE=2",
-                f".meas tran f3 WHEN v(drv)={mid!r} FALL=3", f".meas tran r3 WHEN v(drv)={mid!r} RISE=3",
-                f".meas tran vhigh MAX v(out) FROM={period!r} TO={4 * period!r}",
-                f".meas tran vlow MIN v(out) FROM={period!r} TO={4 * period!r}"]
-    got = run_measures(relaxation_netlist(r, c, supply, low, high, 4.5 * period, measures, leak_a=leak_a),
-                       tmp_path, names)
+    measures = [
+        f".meas tran f2 WHEN v(drv)={mid!r} FALL=2",
+        f".meas tran r2 WHEN v(drv)={mid!r} RISE=2",
+        f".meas tran f3 WHEN v(drv)={mid!r} FALL=3",
+        f".meas tran r3 WHEN v(drv)={mid!r} RISE=3",
+        f".meas tran vhigh MAX v(out) FROM={period!r} TO={4 * period!r}",
+        f".meas tran vlow MIN v(out) FROM={period!r} TO={4 * period!r}",
+    ]
+    got = run_measures(
+        relaxation_netlist(r, c, supply, low, high, 4.5 * period, measures, leak_a=leak_a), tmp_path, names
+    )
     assert got["f2"] < got["r2"] < got["f3"] < got["r3"], got
     # the harness itself: the switch toggles at the thresholds asked (within 0.1 % of the swing)
     assert got["vhigh"] == pytest.approx(high, abs=1e-3 * (high - low))
@@ -114,8 +138,7 @@ def test_spread_period_matches_ngspice(design, tmp_path):
     0.5 % of rcpick's halves and period; the halves also against Kuphaldt Vol. I ch. 16."""
     r, c, supply, low, high, leak_a = design
     keywords = dict(leak=f"{leak_a!r}A") if leak_a else {}
-    result = rcpick.spread(r=r, c=c, period="1ms", thresholds=f"{low!r}V:{high!r}V", supply=f"{supply!r}V",
-                           **keywords)
+    result = rcpick.spread(r=r, c=c, period="1ms", thresholds=f"{low!r}V:{high!r}V", supply=f"{supply!r}V", **keywords)
     doc = result.to_dict()
     halves = doc["period"]
     r_ohm = effective_value(doc["design"]["r"], "r")
@@ -125,8 +148,9 @@ def test_spread_period_matches_ngspice(design, tmp_path):
     assert result.nominal == pytest.approx(charge + discharge, rel=FORM_REL)
     assert halves["duty_cycle"] == pytest.approx(charge / (charge + discharge), rel=FORM_REL)
 
-    sim_charge, sim_discharge = _two_intervals(doc["design"]["r"], doc["design"]["c"], supply, low, high,
-                                               (charge, discharge), tmp_path, leak_a)
+    sim_charge, sim_discharge = _two_intervals(
+        doc["design"]["r"], doc["design"]["c"], supply, low, high, (charge, discharge), tmp_path, leak_a
+    )
     assert sim_charge == pytest.approx(halves["charge_s"], rel=SIM_REL)
     assert sim_discharge == pytest.approx(halves["discharge_s"], rel=SIM_REL)
     assert sim_charge + sim_discharge == pytest.approx(result.nominal, rel=SIM_REL)
@@ -148,7 +172,8 @@ def test_find_period_candidates_match_ngspice(leak, tmp_path):
     for cand in pick_with_pairs([c.to_dict() for c in result.candidates]):
         r_ohm = effective_value(cand["r"], "r")
         tau = r_ohm * effective_value(cand["c"], "c")
-        assert cand["value"] == pytest.approx(sum(kuphaldt_halves(tau, r_ohm, supply, low, high, leak_a)),
-                                              rel=FORM_REL), cand
+        assert cand["value"] == pytest.approx(
+            sum(kuphaldt_halves(tau, r_ohm, supply, low, high, leak_a)), rel=FORM_REL
+        ), cand
         osc = _oscillator(cand["r"], cand["c"], supply, low, high, cand["value"], tmp_path, leak_a)
         assert osc["period"] == pytest.approx(cand["value"], rel=SIM_REL), cand
