@@ -23,6 +23,7 @@ import numpy as np
 
 from rcpick import assess, combos, ranking, search
 from rcpick import stock as stocks
+from rcpick import stress as stresses
 from rcpick import variation as engine
 from rcpick.errors import NotReached, RcpickError, Unreachable
 from rcpick.notation import format_percent, format_si
@@ -266,6 +267,8 @@ def run_find(
             c_use, _ = assess.useful(plan.c)
             pool_window = pool_window_of(target, cond.window)
             pool = search.window_pool(r_use, c_use, target, pool_window)
+            if target.limit is not None and len(pool.shortlist):
+                pool = aimed_pool(pool, r_use, c_use, target, plan, cond)
             if len(pool.shortlist) == 0:
                 raise Unreachable(
                     "no allowed combination has its nominal value inside the window "
@@ -297,9 +300,13 @@ def run_find(
                 spec.top,
                 families=_families(plan),
                 min_yield=spec.min_yield,
+                ratings=spec.ratings(),
                 progress=step,
             )
         candidates = candidates_of(assessed, plan)
+        caution = stresses.safety_caution(target)
+        if caution:
+            plan.warnings.append(caution)
         if candidates and target.leak_a and candidates[0].r is not None and candidates[0].c is not None:
             plan.warnings.extend(leak_warnings(target, candidates[0].r.value, candidates[0].c.value, cond.window))
         if len(candidates) < spec.top and pool_info is not None:
@@ -309,7 +316,7 @@ def run_find(
             )
         analysis = {
             "rank": spec.rank,
-            "rule": ranking.rule_text(spec.rank, target.limit),
+            "rule": ranking.rule_text(spec.rank, target.limit, target.kind == "delay" and target.falling),
             "pool": pool_info,
             "settings": settings_dict(plan, spec),
             "stock": plan.stock.path if plan.stock else None,
@@ -330,7 +337,7 @@ def run_find(
             warnings=[w for w in plan.warnings],
             notes=notes,
             recommendation=recommendation(candidates, target, spec.rank, assessed.window),
-            rule=ranking.rule_text(spec.rank, target.limit),
+            rule=ranking.rule_text(spec.rank, target.limit, target.kind == "delay" and target.falling),
             settings=resolved_settings(spec, plan),
             query_extra=list(query_extra or []),
         )
@@ -377,6 +384,34 @@ def _spell(message: str, spec) -> str:
     from rcpick.errors import RcpickError as _E
 
     return _E(message, setting=None).text(spec.name_of)
+
+
+def aimed_pool(pool: search.Pool, r_use, c_use, target, plan: Plan, cond) -> search.Pool:
+    """For a limit: the designs whose nominal value lies just inside where their worst case meets the limit.
+
+    A first pool (nominal within 50 % on the safe side) gives each design's worst case as a multiple of its
+    nominal value; the designs that can meet the limit have a nominal value up to limit / that multiple.
+    The pool is drawn again nearest the boundary every design meets (the designs between the boundaries, and
+    10 % beyond on the safe side, are in its window), so the analysed designs straddle it.
+    """
+    first = assess.study(pool.shortlist, target, plan.r, plan.c, cond)
+    lo, hi = engine.worst_case(first)
+    nominal = first.nominal
+    if target.limit == "upper":
+        ratio = hi / nominal
+    else:
+        ratio = lo / nominal
+    ratio = ratio[np.isfinite(ratio) & (ratio > 0)]
+    if not len(ratio):
+        return pool
+    # nominal values at which the worst case just meets the limit, relative to the limit
+    edge_low, edge_high = 1.0 / ratio.max() - 1.0, 1.0 / ratio.min() - 1.0
+    if target.limit == "upper":  # every design at or below edge_low meets it; some between the edges do
+        window, near = (edge_low - 0.1, edge_high), edge_low
+    else:
+        window, near = (edge_low, edge_high + 0.1), edge_high
+    aimed = search.window_pool(r_use, c_use, target, window, near=near)
+    return aimed if len(aimed.shortlist) else pool
 
 
 def pool_window_of(target, window: tuple[float, float]) -> tuple[float, float]:
@@ -450,6 +485,7 @@ def candidates_of(assessed: assess.Assessed, plan: Plan) -> list[Candidate]:
         if prices and all(p is not None for p in prices):
             cost = float(sum(prices))  # type: ignore[arg-type]
         flags = list(assessed.flags[k])
+        found_stress = assessed.stress[k]
         if sp.never:
             flags.append(f"{sp.never:,} of {assessed.samples:,} simulated units never reach the level")
         out.append(
@@ -464,6 +500,7 @@ def candidates_of(assessed: assess.Assessed, plan: Plan) -> list[Candidate]:
                 tau_s=r_pos.value * c_pos.value,
                 cost_per_board=cost,
                 flags=tuple(flags),
+                stress=found_stress,
             )
         )
     return out
@@ -597,6 +634,10 @@ def run_spread(
             flags.append(
                 "the worst case leaves the window" if target.limit is None else "the worst case does not meet the limit"
             )
+        design_stress = assess.stress_of(study, r_info, c_info, spec.ratings())[0] if has_target else None
+        caution = stresses.safety_caution(target) if has_target else None
+        if caution:
+            warnings.append(caution)
         r_pos = _position(r_combo, 0, study.r.models[0], r_info)
         c_pos = _position(c_combo, 0, study.c.models[0], c_info)
         yield_ = float(mc.yield_[0]) if mc.yield_ is not None else None
@@ -624,7 +665,8 @@ def run_spread(
             r=r_pos,
             c=c_pos,
             tau_s=nominal_tau,
-            flags=tuple(flags),
+            flags=tuple(flags + stresses.flags(design_stress)),
+            stress=design_stress,
         )
         assert mc.histogram is not None
         counts, edges = mc.histogram

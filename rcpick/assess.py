@@ -42,6 +42,7 @@ class Assessed:
     c_models: list[list[PartModel]]
     flags: list[list[str]]
     samples: int
+    stress: list[dict | None]
 
 
 def window_of(target: Target, window: tuple[float, float]) -> tuple[float, float]:
@@ -119,15 +120,16 @@ def assess(
     *,
     families: tuple[str, str],
     min_yield: float = 0.0,
-    stress=None,
+    ratings=None,
     progress: Callable[[int], None] | None = None,
 ) -> Assessed:
     """Spread of the candidates, ranked, cut to ``top``.
 
     ``rank`` is ``error`` (the shortlist's own order, already by |error|; Monte Carlo for the listed
     candidates only), ``spread`` (narrowest worst-case span first; Monte Carlo for the ``top`` kept),
-    ``yield`` or ``cost`` (Monte Carlo for every candidate). ``stress`` (optional) maps a study to per
-    candidate (sound, stress) arrays.
+    ``yield`` or ``cost`` (Monte Carlo for every candidate). With ``ratings`` (a :class:`rcpick.stress.Ratings`)
+    and a known supply, each candidate's part stress is computed; one over a derated rating ranks after those
+    within, and under a limit the least-stressed qualifying designs come first.
     """
     window = window_of(target, cond.window)
     if rank == "error":
@@ -150,11 +152,14 @@ def assess(
     flags = practical_flags(shortlist, r, c, families)
     sound = np.array([not f for f in flags], dtype=bool)
     stress_share = np.full(len(shortlist), np.nan)
-    if stress is not None:
-        within, stress_share, extra = stress(the_study)
-        sound &= within
-        for k, more in enumerate(extra):
-            flags[k] += more
+    stresses: list[dict | None] = [None] * len(shortlist)
+    if ratings is not None:
+        stresses = stress_of(the_study, r, c, ratings)
+        for k, found in enumerate(stresses):
+            if found is not None:
+                sound[k] &= found["within_ratings"]
+                stress_share[k] = found["peak_power_w"]
+                flags[k] += stress_flags(found)
     inside = (lo >= window[0] * (1 - 1e-12)) & (hi <= window[1] * (1 + 1e-12))
     for k in range(len(shortlist)):
         if not inside[k]:
@@ -180,7 +185,9 @@ def assess(
     if rank == "error":
         order = list(range(len(shortlist)))
     else:
-        order = ranking.order(scores, rank, limit=target.limit, min_yield=min_yield)[:top]
+        order = ranking.order(
+            scores, rank, limit=target.limit, min_yield=min_yield, discharge=target.kind == "delay" and target.falling
+        )[:top]
     pick = np.array(order, dtype=np.intp)
     return Assessed(
         _take(shortlist, pick),
@@ -200,6 +207,7 @@ def assess(
         [the_study.c.models[i] for i in pick],
         [flags[i] for i in pick],
         cond.samples,
+        [stresses[i] for i in pick],
     )
 
 
@@ -218,3 +226,29 @@ def cost_per_board(the_study: variation.Study, r: Parts, c: Parts) -> np.ndarray
                 total += line.unit_price
         out[m] = total
     return out
+
+
+def stress_of(the_study: variation.Study, r: Parts, c: Parts, ratings) -> list[dict | None]:
+    """Per design: the ``stress`` member (rcpick.stress), or None without a supply."""
+    from rcpick import stress as stresses
+    from rcpick.combos import ARRANGEMENTS
+
+    out = []
+    c_eff = the_study.c.nominal
+    for m in range(len(the_study.r)):
+        pieces = []
+        for pos in (the_study.r, the_study.c):
+            count = 1 if pos.wiring[m] == 0 else 2
+            pieces.append(([float(v) for v in pos.parts[m, :count]], ARRANGEMENTS[int(pos.wiring[m])]))
+        (r_parts, r_arr), (c_parts, c_arr) = pieces
+        lines = [c.lines.get(v).voltage if c.lines.get(v) is not None else None for v in c_parts]  # type: ignore[union-attr]
+        out.append(
+            stresses.of_design(the_study.target, r_parts, r_arr, c_parts, c_arr, float(c_eff[m]), ratings, lines)
+        )
+    return out
+
+
+def stress_flags(found: dict) -> list[str]:
+    from rcpick import stress as stresses
+
+    return stresses.flags(found)

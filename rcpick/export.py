@@ -25,6 +25,8 @@ _FORMATS = {
     "(s)": "##0.000E+0",
     "(Hz)": "##0.000E+0",
     "(V)": "0.##",
+    "(W)": "0.###",
+    "(J)": "0.###",
     "(fraction)": "0.000%",
     "(ppm/°C)": "0",
     "(%)": "0.0#",
@@ -95,6 +97,14 @@ def shortlist_rows(document: dict) -> list[dict]:
         row["yield 95 % low (fraction)"], row["yield 95 % high (fraction)"] = ci
         row["parts"] = cand["parts"]
         row["cost per board (each)"] = cand.get("cost_per_board")
+        stress = cand.get("stress")
+        if stress:
+            row["R peak power (W)"] = max(stress["r_power_w"])
+            row["R peak voltage (V)"] = max(stress["r_voltage_v"])
+            row["C peak voltage (V)"] = max(stress["c_voltage_v"])
+            row["within ratings"] = "yes" if stress["within_ratings"] else "no"
+            if "energy_j" in stress:
+                row["stored energy (J)"] = stress["energy_j"]
         row["notes"] = "; ".join(cand.get("flags", [])) or None
         rows.append(row)
     return rows

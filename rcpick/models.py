@@ -216,8 +216,10 @@ def _other(key: str, entry: dict) -> Dielectric:
     cold = tuple(p / 100 for p in entry["cold_change_pct"])
     hot = tuple(p / 100 for p in entry["hot_change_pct"])
     rated = tuple(entry["rated_c"])
-    text = (f"cold {cold[0] * 100:+g}…{cold[1] * 100:+g} %, hot {hot[0] * 100:+g}…{hot[1] * 100:+g} % "
-            f"over {rated[0]:+g}…{rated[1]:+g} °C")
+    text = (
+        f"cold {cold[0] * 100:+g}…{cold[1] * 100:+g} %, hot {hot[0] * 100:+g}…{hot[1] * 100:+g} % "
+        f"over {rated[0]:+g}…{rated[1]:+g} °C"
+    )
     tol = entry["tolerance_pct"] / 100
     return Dielectric(
         key, entry["label"], band(cold, hot, rated, text), (-tol, tol), (0.0, 0.0), entry.get("poor_for_timing")

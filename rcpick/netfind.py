@@ -576,7 +576,7 @@ def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> Fi
             },
             analysis={
                 "rank": spec.rank,
-                "rule": ranking.rule_text(spec.rank, target.limit),
+                "rule": ranking.rule_text(spec.rank, target.limit, target.kind == "delay" and target.falling),
                 "analysed": len(rows),
                 "settings": settings,
                 "stock": stock.path if stock else None,
@@ -584,7 +584,7 @@ def run(spec: FindSpec, *, progress=None, query_extra: list | None = None) -> Fi
             warnings=list(net.warnings) + list(mdl.warnings),
             notes=notes,
             recommendation=recommendation(candidates, target, spec.rank, window),
-            rule=ranking.rule_text(spec.rank, target.limit),
+            rule=ranking.rule_text(spec.rank, target.limit, target.kind == "delay" and target.falling),
             settings=resolved_settings(spec, plan),
             network=net_doc,
             query_extra=extra,

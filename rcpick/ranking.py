@@ -22,12 +22,14 @@ RANKINGS = ("yield", "error", "spread", "cost")
 #: Relative worst-case spans closer than this count as equal (0.1 % of nominal).
 SPAN_DECIMALS = 3
 ERROR_DECIMALS = 12
+#: Nominal errors closer than this count as equal among designs tied on yield (0.01 %).
+TIE_ERROR_DECIMALS = 4
 
 RULES = {
     "yield": (
         "Ranked by yield; designs whose 95 % yield intervals overlap count as tied and are ordered by fewer "
-        "parts, then a narrower worst case, a worst case inside the window, a smaller error, an impedance "
-        "nearer the middle of the range."
+        "parts, then a narrower worst case, a worst case inside the window, a smaller error (to 0.01 %), an "
+        "impedance nearer the middle of the range, a higher yield."
     ),
     "error": "Ranked by the nominal error alone, then fewer parts, then lower R and C.",
     "spread": "Ranked by the narrowest worst-case span, then fewer parts, then a smaller error.",
@@ -35,9 +37,10 @@ RULES = {
         "Ranked by cost per board among the designs whose yield reaches the minimum asked; then by yield as usual."
     ),
 }
-LIMIT_RULE = (
-    "Designs whose worst case meets the limit come first, those stressing their parts least first (for a "
-    "discharge: the largest resistance), then as usual."
+LIMIT_RULE = "Designs whose worst case meets the limit come first, then as usual."
+DISCHARGE_RULE = (
+    "Designs whose worst case meets the limit come first, those stressing their parts least first (the least "
+    "power: the largest resistance), then as usual."
 )
 
 
@@ -61,12 +64,14 @@ class Scores:
 
 
 def _tiebreak(s: Scores, i: int) -> tuple:
+    # differences far below any tolerance (an error of 0.001 % against 0.002 %) do not decide: the yield does
     return (
         int(s.parts[i]),
         round(float(s.span[i]), SPAN_DECIMALS),
         not bool(s.inside[i]),
-        round(float(s.abs_error[i]), ERROR_DECIMALS),
-        round(float(s.off_middle[i]), 6),
+        round(float(s.abs_error[i]), TIE_ERROR_DECIMALS),
+        round(float(s.off_middle[i]), 2),
+        -float(s.yield_[i]),
         float(s.r_ohm[i]),
         float(s.c_farad[i]),
     )
@@ -90,8 +95,14 @@ def by_yield(s: Scores, rows: np.ndarray) -> list[int]:
     return out
 
 
-def order(s: Scores, rank: str, *, limit: str | None = None, min_yield: float = 0.0) -> list[int]:
-    """Indices of the candidates, best first, by the named ranking."""
+def order(
+    s: Scores, rank: str, *, limit: str | None = None, min_yield: float = 0.0, discharge: bool = False
+) -> list[int]:
+    """Indices of the candidates, best first, by the named ranking.
+
+    ``discharge``: the timing discharges stored energy, so under a limit the qualifying designs that stress
+    their parts least (the least power) come first.
+    """
     every = np.arange(len(s.parts))
     if rank == "error":
         return [int(i) for i in np.lexsort((s.c_farad, s.r_ohm, s.parts, np.round(s.abs_error, ERROR_DECIMALS)))]
@@ -108,7 +119,7 @@ def order(s: Scores, rank: str, *, limit: str | None = None, min_yield: float = 
             priced = sorted(meets, key=lambda i: (np.nan_to_num(s.cost[i], nan=np.inf), -s.yield_[i], _tiebreak(s, i)))
             out += [int(i) for i in priced]
             out += by_yield(s, np.setdiff1d(group, meets))
-        elif limit is not None and k < 2 and np.any(np.isfinite(s.stress[group])):
+        elif limit is not None and discharge and k < 2 and np.any(np.isfinite(s.stress[group])):
             # least stress first, then as usual among equals
             ranked = by_yield(s, group)
             out += sorted(
@@ -119,6 +130,8 @@ def order(s: Scores, rank: str, *, limit: str | None = None, min_yield: float = 
     return out
 
 
-def rule_text(rank: str, limit: str | None) -> str:
+def rule_text(rank: str, limit: str | None, discharge: bool = False) -> str:
     text = RULES[rank]
-    return f"{LIMIT_RULE} {text}" if limit is not None and rank in ("yield", "cost") else text
+    if limit is not None and rank in ("yield", "cost"):
+        return f"{DISCHARGE_RULE if discharge else LIMIT_RULE} {text}"
+    return text

@@ -18,6 +18,7 @@ effective R, effective C.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -179,7 +180,9 @@ class Pool:
     capped: bool
 
 
-def window_pool(r: Combos, c: Combos, target: Target, window: tuple[float, float], cap: int = POOL_CAP) -> Pool:
+def window_pool(
+    r: Combos, c: Combos, target: Target, window: tuple[float, float], cap: int = POOL_CAP, near: float | None = None
+) -> Pool:
     """Every candidate whose nominal value is inside the window, or ``cap`` of them.
 
     When more than ``cap`` lie inside, the cap is shared equally between part
@@ -191,9 +194,20 @@ def window_pool(r: Combos, c: Combos, target: Target, window: tuple[float, float
     ----------
     window : (low, high)
         Relative acceptance window around the target, e.g. (-0.1, 0.1); an end may be infinite.
+    near : float, optional
+        Relative value (like the window's ends) the candidates are searched nearest to; by default the target
+        when it lies in the window, else the window's middle.
     """
     q_low, q_high = target.value * (1 + window[0]), target.value * (1 + window[1])
     total = count_in_window(r, c, target, q_low, q_high)
+    # the candidates nearest the window are searched for around it: the target itself when it lies inside,
+    # else (a window aimed off the target, for a limit) the window's middle
+    around = target
+    if near is not None or not q_low <= target.value <= q_high:
+        from dataclasses import replace
+
+        point = target.value * (1 + near) if near is not None else math.sqrt(q_low * q_high)
+        around = replace(target, value=point)
     groups: dict[int, list[tuple[np.ndarray, np.ndarray]]] = {2: [], 3: [], 4: []}
     for r_single in (True, False):
         for c_single in (True, False):
@@ -202,7 +216,7 @@ def window_pool(r: Combos, c: Combos, target: Target, window: tuple[float, float
             if len(r_sub) == 0 or len(c_sub) == 0 or total == 0:
                 continue
             try:
-                found = best(r_sub, c_sub, target, top=min(cap, total))
+                found = best(r_sub, c_sub, around, top=min(cap, total))
             except Unreachable:
                 continue
             q = target.quantity(found.r_ohm, found.c_farad)

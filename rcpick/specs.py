@@ -367,10 +367,12 @@ class PartSettings:
                 for x in (low, high)
             )
             base = targets.for_period(s.period, pair[0], pair[1], scale_v=scale, leak_a=s.leak or 0.0)
-        if limit is not None:
-            from dataclasses import replace
+        from dataclasses import replace
 
+        if limit is not None:
             base = replace(base, limit=limit)
+        if kind in ("tau", "cutoff") and s.supply is not None:
+            base = replace(base, scale_v=s.supply)  # the step applied, for the parts' stress
         return base
 
     def conditions(self, network: bool = False) -> Conditions:
@@ -456,6 +458,26 @@ class PartSettings:
         for model, what in ((r_model, "resistor"), (c_model, "capacitor")):
             check_model_validity(model, s.temp, what)
         return Models(r_model, c_model, diel, warnings, s.c_age, loss)
+
+    def ratings(self):
+        """Per-part ratings: the settings given, else the resistor technology's usual ones (data/resistors.toml)."""
+        from rcpick.stress import Ratings
+
+        s: Any = self
+        usual = models.technology_ratings(s.r_tech)
+        power = s.r_power if s.r_power is not None else usual["power_w"]
+        volts = s.r_voltage if s.r_voltage is not None else usual["voltage_v"]
+        given = [
+            n
+            for n in ("r_power", "r_voltage")
+            if s.r_power is not None and n == "r_power" or s.r_voltage is not None and n == "r_voltage"
+        ]
+        source = (
+            "as given"
+            if len(given) == 2
+            else f"{s.r_tech} usual ({usual['source']})" + (f"; {', '.join(given)} as given" if given else "")
+        )
+        return Ratings(power, volts, s.c_voltage, s.derate, source)
 
     def ask(self, kind: str) -> stocks.Ask:
         """What the user asked of stocked parts of one kind (given settings only)."""

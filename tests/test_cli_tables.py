@@ -9,8 +9,25 @@ QUERIES = {
     "tau": ["find", "--tau", "10ms", "--samples", "2000"],
     "delay in volts": ["find", "--delay", "200ms", "--threshold", "1.1V", "--supply", "1.8V", "--samples", "2000"],
     "stock with prices": ["find", "--tau", "4.7ms", "--stock", "demo", "--samples", "2000"],
-    "network": ["find", "--net", "docs/examples/reset-divider.cir", "--vary", "R1,C1", "--delay", "8ms",
-                "--threshold", "2.0V", "--node", "rst", "--r-parts", "1", "--c-parts", "1", "--samples", "300"],
+    "network": [
+        "find",
+        "--net",
+        "docs/examples/reset-divider.cir",
+        "--vary",
+        "R1,C1",
+        "--delay",
+        "8ms",
+        "--threshold",
+        "2.0V",
+        "--node",
+        "rst",
+        "--r-parts",
+        "1",
+        "--c-parts",
+        "1",
+        "--samples",
+        "300",
+    ],
 }
 
 
@@ -30,7 +47,7 @@ def test_nothing_essential_is_cut(run, case, width):
     assert all(len(line) <= width for line in lines), max(lines, key=len)
     rule = next(i for i, line in enumerate(lines) if line.startswith("───"))
     rows = []
-    for line in lines[rule + 1:]:
+    for line in lines[rule + 1 :]:
         if not re.match(r"^\s*\d+  \S", line):
             break
         rows.append(line)
@@ -38,8 +55,11 @@ def test_nothing_essential_is_cut(run, case, width):
     assert len(rows) == len(doc["candidates"])
     for row, cand in zip(rows, doc["candidates"]):
         assert row.split()[0] == str(cand["rank"])
-        texts = ([cand["elements"][n]["text"] for n in doc["network"]["vary"]] if "network" in doc
-                 else [cand["r"]["text"], cand["c"]["text"]])
+        texts = (
+            [cand["elements"][n]["text"] for n in doc["network"]["vary"]]
+            if "network" in doc
+            else [cand["r"]["text"], cand["c"]["text"]]
+        )
         for text in texts:
             assert f" {text} " in f" {row} ", (text, row)
         assert _yield_text(cand["spread"]) in row
@@ -62,8 +82,18 @@ def test_footer_wraps_at_the_width(run, width):
 
 def test_spread_fits(run):
     for width in (80, 100):
-        result = run("spread", "--r", "4k7+330", "--c", "47n//47n", "--tau", "470us", "--dielectric", "C0G",
-                     env={"COLUMNS": str(width)})
+        result = run(
+            "spread",
+            "--r",
+            "4k7+330",
+            "--c",
+            "47n//47n",
+            "--tau",
+            "470us",
+            "--dielectric",
+            "C0G",
+            env={"COLUMNS": str(width)},
+        )
         assert result.exit_code == 0
         assert max(len(line) for line in result.stdout.splitlines()) <= width
 

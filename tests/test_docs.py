@@ -39,7 +39,8 @@ def test_readme_example_runs(run, command, tmp_path, monkeypatch):
 
 def test_api_page_examples_print_what_they_show():
     # every >>> line of docs/api.md runs and its printed output is compared line by line
-    failed, attempted = doctest.testfile(str(ROOT / "docs" / "api.md"), module_relative=False,
-                                         optionflags=doctest.NORMALIZE_WHITESPACE)
+    failed, attempted = doctest.testfile(
+        str(ROOT / "docs" / "api.md"), module_relative=False, optionflags=doctest.NORMALIZE_WHITESPACE
+    )
     assert failed == 0
     assert attempted >= 18

@@ -257,7 +257,7 @@ def _styled_words(line: str) -> list[tuple[str, str | None]]:
     pos = 0
     pending = ""
     for match in _TAG.finditer(line):
-        pending += line[pos:match.start()]
+        pending += line[pos : match.start()]
         pieces = pending.split(" ")
         for k, piece in enumerate(pieces):
             if k < len(pieces) - 1 or piece:

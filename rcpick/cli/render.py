@@ -135,12 +135,18 @@ def find_table(result) -> None:
     if target.kind != "tau" or result.network is not None:
         columns.append({"name": target.kind, "justify": "right", "drop": 5})
     columns += [
-        {"name": "error" if rel else "vs limit", "justify": "right", "drop": None},
+        {"name": "error, %" if rel else "vs limit, %", "justify": "right", "drop": None},
         {"name": "worst case, %", "justify": "right", "drop": None},
         {"name": "MC 99.73 %, %", "justify": "right", "drop": 4},
         {"name": "yield % (95 % CI)", "justify": "right", "drop": None},
         {"name": "parts", "justify": "right", "drop": None},
     ]
+    if not rel:
+        columns.insert(-2, {"name": "margin, %", "justify": "right", "drop": None})
+    # a ratings column only when some design is over a derated rating (else the footer says all are within)
+    rated = any(c.get("stress") and not c["stress"]["within_ratings"] for c in cands)
+    if rated:
+        columns.append({"name": "ratings", "justify": "left", "drop": None})
     priced = any(c.get("cost_per_board") is not None for c in cands)
     if priced:
         columns.append({"name": "cost", "justify": "right", "drop": 6})
@@ -162,12 +168,16 @@ def find_table(result) -> None:
             row.append(format_si(cand["value"], unit, 4) if cand["value"] is not None else "never")
         mark = " !" if any("worst case" in f for f in cand["flags"]) else ""
         row += [
-            format_percent(cand["error"], 3, signed=True) if cand["error"] is not None else "–",
+            format_percent(cand["error"], 3, signed=True)[:-2] if cand["error"] is not None else "–",
             _span(sp["worst_min"], sp["worst_max"], target.value) + mark,
             _span(sp["p_low"], sp["p_high"], target.value),
-            yield_text(sp),
-            str(cand["parts"]),
         ]
+        if not rel:
+            row.append(margin_text(sp, target))
+        row += [yield_text(sp), str(cand["parts"])]
+        if rated:
+            found = cand.get("stress")
+            row.append("–" if not found else ("ok" if found["within_ratings"] else "over"))
         if priced:
             row.append(f"{cand['cost_per_board']:.4g}" if cand.get("cost_per_board") is not None else "–")
         rows.append(row)
@@ -182,6 +192,12 @@ def find_table(result) -> None:
         foot.append(f"… and {len(notes) - 6} more notes (--format json lists them).")
     if dropped:
         foot.append(f"Not shown at this width: {', '.join(dropped)} (widen the terminal, or use --format csv).")
+    if cands and cands[0].get("stress"):
+        if not rated:
+            foot.append("Every listed design is within its derated ratings.")
+        foot.append(stress_line(cands[0]))
+    if not rel:
+        foot.append("Margin: how far the worst case stays inside the limit, in % of the limit (negative: it misses).")
     legend = (
         WIRING_LEGEND + " Spread columns in % of the target: worst case over tolerance and temperature; "
         "Monte Carlo 0.135 %…99.865 % span; yield = units inside the window at every temperature checked, "
@@ -193,6 +209,39 @@ def find_table(result) -> None:
     out.print(f"[dim]{result.rule}[/dim]")
     out.print(f"[bold]Recommendation[/bold] {result.recommendation}")
     out.print(f"[dim]{CAUTION}[/dim]")
+
+
+def margin_text(sp: dict, target) -> str:
+    """The worst case's margin to a one-sided limit, in % of the limit (positive: met)."""
+    edge = sp["worst_max"] if target.limit == "upper" else sp["worst_min"]
+    if edge is None:
+        return "never"
+    margin = (1 - edge / target.value) if target.limit == "upper" else (edge / target.value - 1)
+    return f"{margin * 100:+.1f}"
+
+
+def stress_line(cand: dict) -> str:
+    """Rank 1's part stress in words: each part's power and voltage, the capacitor's voltage, stored energy."""
+    st = cand["stress"]
+    r_parts = cand["r"]["parts_detail"]
+    bits = [f"{p['rkm']} {w:.3g} W at {v:.4g} V" for p, w, v in zip(r_parts, st["r_power_w"], st["r_voltage_v"])]
+    c_bits = [f"{p['rkm']} at {v:.4g} V" for p, v in zip(cand["c"]["parts_detail"], st["c_voltage_v"])]
+    text = f"Stress of rank 1 (at the first instant): R {', '.join(bits)}; C {', '.join(c_bits)}"
+    if "energy_j" in st:
+        text += f"; stored energy ½CV² = {st['energy_j']:.3g} J"
+    ratings = st["ratings"]
+    p_share, v_share = ratings["derate"]
+    known = []
+    if ratings["r_power_w"] is not None:
+        known.append(f"{ratings['r_power_w']:g} W")
+    if ratings["r_voltage_v"] is not None:
+        known.append(f"{ratings['r_voltage_v']:g} V")
+    if known:
+        text += (
+            f". Resistor ratings {' and '.join(known)} ({ratings['source']}), used to {p_share:.0%} of power "
+            f"and {v_share:.0%} of voltage"
+        )
+    return text + " (--r-power, --r-voltage, --c-voltage, --derate)."
 
 
 # --- one design -------------------------------------------------------------------
@@ -296,6 +345,12 @@ def spread_report(result) -> None:
     print_table(out, columns, rows)
     for flag in result.design.flags:
         out.print(f"Note: {flag}.")
+    if doc.get("stress"):
+        out.print(
+            stress_line({"stress": doc["stress"], "r": doc["design"]["r"], "c": doc["design"]["c"]}).replace(
+                "Stress of rank 1", "Stress"
+            )
+        )
     if sp["yield"] is not None:
         out.print(
             "[dim]Yield: share of units inside the window (or meeting the limit) at every checked temperature, "
