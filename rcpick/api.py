@@ -270,10 +270,17 @@ def run_find(
             if target.limit is not None and len(pool.shortlist):
                 pool = aimed_pool(pool, r_use, c_use, target, plan, cond)
             if len(pool.shortlist) == 0:
+                followed = ""
+                if not spec.is_given("c_max") and plan.c.span[1] < 10e-6:
+                    followed = (
+                        f" ({plan.models.dielectric.code} parts are practical up to "
+                        f"{format_si(plan.c.span[1], 'F', 3, trim=True)}, so {{c_max}} follows)"
+                    )
                 raise Unreachable(
                     "no allowed combination has its nominal value inside the window "
-                    f"{_window_text(target, cond.window)}; widen {{window}} or the ranges, or rank by error "
-                    "({rank} error)"
+                    f"{_window_text(target, cond.window)} within R {plan.r.description.split(',')[0]} and C "
+                    f"{plan.c.description.split(',')[0]}{followed}; widen {{window}}, {{r_max}} or {{c_max}}, or "
+                    "rank by error ({rank} error)"
                 )
             shortlist = pool.shortlist
             pool_info = {

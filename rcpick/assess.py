@@ -104,7 +104,8 @@ def practical_flags(shortlist: Shortlist, r: Parts, c: Parts, kinds: tuple[str, 
                 kind = combos.kind
                 text = ", ".join(format_rkm(v, kind) for v in odd)
                 out_range = f"{format_rkm(low, kind)}…{format_rkm(high, kind)}"
-                flags.append(f"{text} is outside the practical range of {family} parts ({out_range})")
+                verb = "is" if len(odd) == 1 else "are"
+                flags.append(f"{text} {verb} outside the practical range of {family} parts ({out_range})")
         out.append(flags)
     return out
 
@@ -151,6 +152,10 @@ def assess(
     nominal = the_study.nominal
     flags = practical_flags(shortlist, r, c, families)
     sound = np.array([not f for f in flags], dtype=bool)
+    for k, note in enumerate(leakage_notes(target, shortlist.r_ohm, shortlist.c_farad, window)):
+        if note:  # impedance so high that usual leakage matters: ranked after the practical designs
+            flags[k].append(note)
+            sound[k] = False
     stress_share = np.full(len(shortlist), np.nan)
     stresses: list[dict | None] = [None] * len(shortlist)
     if ratings is not None:
@@ -252,3 +257,50 @@ def stress_flags(found: dict) -> list[str]:
     from rcpick import stress as stresses
 
     return stresses.flags(found)
+
+
+def leakage_notes(target: Target, r_ohm: np.ndarray, c_farad: np.ndarray, window: tuple[float, float]) -> list[str]:
+    """Per design: a note when leakage of a usual size would move the timing (data/practical.toml [leakage]).
+
+    With a supply and a delay or period, the charging current at the threshold is compared through the timing
+    itself: a note when a leakage of the usual input limit would move it by more than a quarter of the window
+    (or of the margin to a limit). Without a supply, a note above the resistance where leakage starts to matter.
+    Not given when a leakage is modelled already (``leak``).
+    """
+    from dataclasses import replace
+
+    from rcpick.datafiles import load_toml
+    from rcpick.notation import format_si
+
+    figures = load_toml("practical.toml")["leakage"]
+    current, resistance = float(figures["input_current_a"]), float(figures["resistance_ohm"])
+    out = [""] * len(r_ohm)
+    if target.leak_a:
+        return out
+    if target.scale_v is None or target.kind not in ("delay", "period"):
+        for k, r in enumerate(r_ohm):
+            if r > resistance:
+                out[k] = (
+                    f"{format_si(r, 'Ω', 3, trim=True)} is above {format_si(resistance, 'Ω', 3, trim=True)}: "
+                    f"input and board leakage start to move the timing (model it with a supply and a leakage)"
+                )
+        return out
+    sides = [abs(target.value - w) / target.value for w in window if np.isfinite(w)]
+    allowed = 0.25 * (min(sides) if sides else 0.1)
+    leaky = replace(target, leak_a=current)
+    base = target.quantity(r_ohm, c_farad)
+    moved = leaky.quantity(r_ohm, c_farad)
+    for k in range(len(r_ohm)):
+        shift = moved[k] / base[k] - 1.0
+        if not np.isfinite(shift) or abs(shift) > allowed:
+            level = (target.threshold if target.kind == "delay" else target.thresholds[1]) or 0.0
+            final = 0.0 if (target.kind == "delay" and target.falling) else 1.0
+            charging = abs(final - level) * target.scale_v / r_ohm[k]
+            what = (
+                "would stop the node short of it" if not np.isfinite(shift) else f"would move it {shift * 100:+.1f} %"
+            )
+            out[k] = (
+                f"only {format_si(charging, 'A', 2)} flows at the threshold: a {format_si(current, 'A', 2)} "
+                f"input leakage (a usual limit) {what}"
+            )
+    return out
