@@ -9,7 +9,7 @@ import pytest
 import rcpick
 from rcpick import models, variation
 from rcpick import target as targets
-from rcpick.combos import PARALLEL, SERIES, SINGLE
+from rcpick.combos import SERIES, SINGLE
 from rcpick.models import PartModel
 from rcpick.sampling import Sampler
 
