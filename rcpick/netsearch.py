@@ -29,6 +29,16 @@ from rcpick.netlist import Netlist
 from rcpick.search import ERROR_DECIMALS, REACH_LIMIT
 
 ENUMERATION_CAP = 300_000
+#: Bytes the stacked nodal matrices of one slice of networks may take (about a dozen n × n arrays each).
+MATRIX_BUDGET = 128 * 2**20
+
+
+def batch_size(net: Netlist) -> int:
+    """Networks solved at once: up to BATCH, fewer for a large network so memory stays within MATRIX_BUDGET."""
+    unknowns = max(1, len(net.nodes))
+    return int(max(1, min(BATCH, MATRIX_BUDGET // (12 * 8 * unknowns * unknowns))))
+
+
 BATCH = 20_000
 HORIZON_TAUS = 30.0
 
@@ -49,12 +59,13 @@ class Quantity:
     def evaluate(
         self, net: Netlist, values: dict[str, np.ndarray], batch: int, level_scale: np.ndarray | None = None
     ) -> np.ndarray:
-        """The quantity (s or Hz) for each network of the batch."""
+        """The quantity (s or Hz) for each network of the batch, solved in slices that fit MATRIX_BUDGET."""
         out = np.empty(batch)
-        for start in range(0, batch, BATCH):
-            part = {k: v[start : start + BATCH] for k, v in values.items()}
-            n = min(BATCH, batch - start)
-            scale = None if level_scale is None else level_scale[start : start + BATCH]
+        step = batch_size(net)
+        for start in range(0, batch, step):
+            part = {k: v[start : start + step] for k, v in values.items()}
+            n = min(step, batch - start)
+            scale = None if level_scale is None else level_scale[start : start + step]
             out[start : start + n] = self._evaluate(net, part, n, scale)
         return out
 
@@ -150,6 +161,19 @@ def _rank(index, value, target_value, varied, top):
     return index[rows], value[rows], error[rows]
 
 
+def check_enumeration(varied: list[Varied], quantity: Quantity) -> None:
+    """Refuse a delay or corner search that would try more than ``ENUMERATION_CAP`` combinations."""
+    if quantity.kind == "tau":
+        return
+    total = math.prod(len(v.combos) for v in varied)
+    if total > ENUMERATION_CAP:
+        raise BadValue(
+            f"a {quantity.kind} target is searched by trying every combination, and "
+            f"{total:,} exceeds {ENUMERATION_CAP:,}: use {{r_parts}} 1/{{c_parts}} 1 or narrower ranges",
+            setting="vary",
+        )
+
+
 def search(net: Netlist, varied: list[Varied], quantity: Quantity, target_value: float, top: int) -> NetShortlist:
     """The ``top`` best combinations of the varied elements' candidates for ``target_value`` (s or Hz)."""
     sizes = [len(v.combos) for v in varied]
@@ -195,13 +219,7 @@ def search(net: Netlist, varied: list[Varied], quantity: Quantity, target_value:
         for j, k in enumerate(others):
             index[:, k] = outer[rows_flat, j]
     else:
-        total = math.prod(sizes)
-        if total > ENUMERATION_CAP:
-            raise BadValue(
-                f"a {quantity.kind} target is searched by trying every combination, and "
-                f"{total:,} exceeds {ENUMERATION_CAP:,}: use {{r_parts}} 1/{{c_parts}} 1 or narrower ranges",
-                setting="vary",
-            )
+        check_enumeration(varied, quantity)
         index = np.array(list(itertools.product(*[range(s) for s in sizes])), dtype=np.intp).reshape(-1, len(varied))
         values = {v.name: v.combos.value[index[:, k]] for k, v in enumerate(varied)}
         value = quantity.evaluate(net, values, len(index))

@@ -5,7 +5,7 @@ import pytest
 from rcpick import models
 from rcpick.errors import UnknownName
 
-# EIA-198 / IEC 60384 class 2 code tables (facts.md §3): low letter, high digit, change letter.
+# EIA-198 / IEC 60384 class 2 code tables : low letter, high digit, change letter.
 CLASS2 = {
     "X7R": ((-55, 125), (-0.15, 0.15)),
     "X5R": ((-55, 85), (-0.15, 0.15)),
@@ -30,7 +30,7 @@ def test_class2_codes(code):
     assert cold == pytest.approx(list(change)) and hot == pytest.approx(list(change))
 
 
-# EIA-198 class 1 grammar (facts.md §3): C0G = 0 ± 30, U2J = −750 ± 120, P3K = −1500 ± 250 ppm/°C.
+# EIA-198 class 1 grammar: C0G = 0 ± 30, U2J = −750 ± 120, P3K = −1500 ± 250 ppm/°C.
 CLASS1 = {"C0G": (-30e-6, 30e-6), "NP0": (-30e-6, 30e-6), "U2J": (-870e-6, -630e-6), "P3K": (-1750e-6, -1250e-6)}
 
 
@@ -43,7 +43,7 @@ def test_class1_codes(code):
 
 
 def test_usual_tolerances_and_timing_warnings():
-    # Usual tolerances are common practice (facts.md §3–4): class 1 5 %, class 2 10 %, Y5V/Z5U +80/−20 %.
+    # Usual tolerances are common practice: class 1 5 %, class 2 10 %, Y5V/Z5U +80/−20 %.
     assert models.dielectric("C0G").tolerance == (-0.05, 0.05)
     assert models.dielectric("X7R").tolerance == (-0.10, 0.10)
     assert models.dielectric("Y5V").tolerance == (-0.20, 0.80)
@@ -66,7 +66,7 @@ def test_unknown_dielectric_lists_accepted_forms(code):
 
 
 def test_resistor_technologies():
-    # Common practice (facts.md §5): carbon film has a negative TCR, −250 … −1000 ppm/°C.
+    # Common practice: carbon film has a negative TCR, −250 … −1000 ppm/°C.
     _, drift, _ = models.resistor_technology("carbon-film")
     assert drift.cold == pytest.approx((-1000e-6, -250e-6))
     _, thick, _ = models.resistor_technology("thick")

@@ -40,7 +40,7 @@ def test_si_prefixes(text, kind, expected):
 
 @pytest.mark.parametrize(
     ("text", "kind", "expected"),
-    # IEC 60062 RKM examples (facts.md §2)
+    # IEC 60062:2016 RKM code examples
     [
         ("4K7", "resistance", 4.7e3),
         ("R47", "resistance", 0.47),

@@ -5,7 +5,7 @@ import pytest
 from rcpick import series
 from rcpick.errors import UnknownName
 
-# Source: IEC 60063:2015 as quoted in ../shared/reference/facts.md §1 —
+# Source: IEC 60063:2015, "Preferred number series for resistors and capacitors" —
 # published E3..E24 values that the formula 10^(i/n) does NOT give.
 IRREGULAR = {
     "E3": [47],
@@ -49,7 +49,7 @@ def test_nesting_and_sizes():
 
 
 def test_usual_tolerances():
-    # IEC 60063 usage (facts.md §1): E6 20 %, E12 10 %, E24 5 %, E48 2 %, E96 1 %, E192 0.5 %.
+    # IEC 60063 usage: E6 20 %, E12 10 %, E24 5 %, E48 2 %, E96 1 %, E192 0.5 %.
     expected = {"E6": 0.20, "E12": 0.10, "E24": 0.05, "E48": 0.02, "E96": 0.01, "E192": 0.005}
     for name, tol in expected.items():
         assert series.get(name).tolerance == pytest.approx(tol)

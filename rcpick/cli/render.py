@@ -192,6 +192,16 @@ def find_table(result) -> None:
         foot.append(f"… and {len(notes) - 6} more notes (--format json lists them).")
     if dropped:
         foot.append(f"Not shown at this width: {', '.join(dropped)} (widen the terminal, or use --format csv).")
+    for cand in cands[:3]:
+        stocked = [
+            f"{d['rkm']} line {d['stock']['line']} ({d['part_number'] or 'no part number'})"
+            for pos in ("r", "c")
+            if cand.get(pos)
+            for d in cand[pos]["parts_detail"]
+            if d.get("stock")
+        ]
+        if stocked:
+            foot.append(f"Rank {cand['rank']} from stock: {', '.join(stocked)}.")
     if cands and cands[0].get("stress"):
         if not rated:
             foot.append("Every listed design is within its derated ratings.")

@@ -54,7 +54,7 @@ def test_coupled_jump_matches_ngspice(tmp_path):
     text, node = NETWORKS["coupled"]
     resp = nodal.step_response(parse(text))
     ours = float(resp.initial(node)[0])
-    assert ours == pytest.approx(5 * 22 / 122, rel=1e-12)  # Vs·C1/(C + C1), facts.md §6
+    assert ours == pytest.approx(5 * 22 / 122, rel=1e-12)  # Vs·C1/(C + C1), Desoer and Kuh, Basic Circuit Theory
     spice = run_measure(spice_text(text, 1e-3, [f".meas tran vjump FIND v({node}) AT=1e-9"]), tmp_path, "vjump")
     # 1 ns after the step the node has relaxed by only about 1e-9 / 1.22e-3 of the jump
     assert spice == pytest.approx(ours, rel=5e-3)
