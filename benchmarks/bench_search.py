@@ -52,15 +52,19 @@ def main() -> None:
     assert list(zip(found_a.r_index, found_a.c_index)) == list(zip(bri, bci)), "search and brute force disagree"
     print(f"(a) E24 pairs 1 kΩ–1 MΩ × E12 pairs 100 pF–10 µF: {len(r_a):,} × {len(c_a):,} = {len(r_a) * len(c_a):,}")
     print(f"    candidate sets built in {build_a * 1e3:.1f} ms")
-    print(f"    exact top 10: {search_a * 1e3:.2f} ms   numpy brute force: {brute_a * 1e3:.1f} ms   "
-          f"ratio {brute_a / search_a:.0f}×  (target >= 50×)")
+    print(
+        f"    exact top 10: {search_a * 1e3:.2f} ms   numpy brute force: {brute_a * 1e3:.1f} ms   "
+        f"ratio {brute_a / search_a:.0f}×  (target >= 50×)"
+    )
 
     build_b, (r_b, c_b) = timed(lambda: space("E192", 1.0, 10e6, "E24", 1e-12, 1e-3), 2)
     search_b, found_b = timed(lambda: search.best(r_b, c_b, target, 10))
     print(f"(b) E192 pairs 1 Ω–10 MΩ × E24 pairs 1 pF–1 mF: {len(r_b):,} × {len(c_b):,} = {len(r_b) * len(c_b):,}")
     print(f"    candidate sets built in {build_b * 1e3:.0f} ms")
-    print(f"    exact top 10: {search_b * 1e3:.1f} ms  (target < 500 ms)   "
-          f"build + search {(build_b + search_b) * 1e3:.0f} ms")
+    print(
+        f"    exact top 10: {search_b * 1e3:.1f} ms  (target < 500 ms)   "
+        f"build + search {(build_b + search_b) * 1e3:.0f} ms"
+    )
 
     walls = []
     for _ in range(5):

@@ -293,7 +293,10 @@ def leakage_notes(target: Target, r_ohm: np.ndarray, c_farad: np.ndarray, window
     for k in range(len(r_ohm)):
         shift = moved[k] / base[k] - 1.0
         if not np.isfinite(shift) or abs(shift) > allowed:
-            level = (target.threshold if target.kind == "delay" else target.thresholds[1]) or 0.0
+            if target.kind == "delay" or target.thresholds is None:
+                level = target.threshold or 0.0
+            else:
+                level = target.thresholds[1]
             final = 0.0 if (target.kind == "delay" and target.falling) else 1.0
             charging = abs(final - level) * target.scale_v / r_ohm[k]
             what = (

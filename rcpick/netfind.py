@@ -96,12 +96,13 @@ def analyse(spec: NetworkSpec) -> NetworkResult:
             t = float(nodal.crossing_time(resp, node, np.array([level]), np.array([horizon]))[0])
             step["threshold_v"] = level
             if math.isnan(t):
-                unreached = (
-                    f"node {node} never reaches {format_si(level, 'V', 4)}: it goes from "
-                    f"{format_si(v0, 'V', 4)} to {format_si(v_final, 'V', 4)}"
-                )
+
+                def volts(x: float) -> str:
+                    return format_si(x, "V", 6, trim=True)
+
+                unreached = f"node {node} never reaches {volts(level)}: it goes from {volts(v0)} to {volts(v_final)}"
                 if low < min(v0, v_final) - 1e-9 or high > max(v0, v_final) + 1e-9:
-                    unreached += f", passing between {format_si(low, 'V', 4)} and {format_si(high, 'V', 4)}"
+                    unreached += f", passing between {volts(low)} and {volts(high)}"
                 doc["warnings"].append(unreached)
             else:
                 step["t_threshold_s"] = t
@@ -391,6 +392,7 @@ def _target_of(spec: FindSpec):
 def pooled(net: Netlist, varied: list[netsearch.Varied], quantity, value: float, size: int) -> netsearch.NetShortlist:
     """The best candidates by |error| with an equal share for each mix of single parts and pairs
     (:func:`rcpick.search.share_cap`, as for a lone R and C)."""
+    netsearch.check_enumeration(varied, quantity)  # before any pool is evaluated
     groups: dict[tuple, tuple] = {}
     for singles in itertools.product([True, False], repeat=len(varied)):
         subsets, maps = [], []

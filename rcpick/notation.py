@@ -149,6 +149,10 @@ def _decimal_to_float(mantissa: str, exp10: int) -> float:
         return math.inf
 
 
+#: Plural names used in messages ("outside the frequencies rcpick handles").
+PLURALS = {"frequency": "frequencies"}
+
+
 def _in_limits(value: float, kind: str, raw: object) -> float:
     """Refuse a value outside the range rcpick handles for its kind (zero is left to the caller)."""
     low, high = LIMITS[kind]
@@ -157,7 +161,7 @@ def _in_limits(value: float, kind: str, raw: object) -> float:
         raise BadValue(f"{raw!r} is not a finite {kind}", value=raw)
     if value != 0 and not low <= abs(value) <= high:
         raise BadValue(
-            f"{raw!r} is outside the {kind}s rcpick handles "
+            f"{raw!r} is outside the {PLURALS.get(kind, kind + 's')} rcpick handles "
             f"({format_si(low, symbol, trim=True)} … {format_si(high, symbol, trim=True)})",
             value=raw,
         )

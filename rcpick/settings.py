@@ -659,7 +659,7 @@ _DECLARED = [
     ),
     Setting(
         "seed",
-        count(0, 2**63 - 1, "a whole number 0 or more"),
+        count(0, 10**18, "a whole number from 0 to 1e18"),
         count=True,
         default=1,
         shown="1",
@@ -872,7 +872,7 @@ def _power(raw: Any) -> float:
                     f"cannot read {raw!r}; expected a power such as 0.25W, 250mW or 1/4W", value=raw
                 ) from None
         else:
-            prefix = {"m": 1e-3, "k": 1e3, "u": 1e-6, "µ": 1e-6}.get(body[-1:], 1.0)
+            prefix = {"m": 1e-3, "k": 1e3, "M": 1e6, "u": 1e-6, "µ": 1e-6}.get(body[-1:], 1.0)
             digits = body[:-1] if prefix != 1.0 else body
             try:
                 value = float(notation._plain_number(digits, "a power", "0.25W")) * prefix

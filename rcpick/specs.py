@@ -64,7 +64,7 @@ def api_layer(values: Mapping[str, Any]) -> Layer:
 
 
 def file_key_namer(path: str) -> Namer:
-    return lambda setting: f"{path} key {settings.key_name(setting)!r}"
+    return lambda setting: f"{path}: key {settings.key_name(setting)!r}"
 
 
 def read_toml(path: Path) -> dict:

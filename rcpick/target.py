@@ -208,6 +208,14 @@ class Target:
             text += f" (tau {format_si(tau, 's')})"
         return text
 
+    def typed_level(self, fraction: float) -> str:
+        """A level for a message, to six figures so it reads as typed (``3.2999 V``, ``0.7 of the step``)."""
+        from rcpick.notation import format_si
+
+        if self.scale_v is not None:
+            return format_si(fraction * self.scale_v, "V", 6, trim=True)
+        return f"{fraction:.6g} of the step"
+
     def _level_text(self, fraction: float) -> str:
         from rcpick.notation import format_si
 
@@ -252,39 +260,38 @@ def for_period(
 
 
 def check_levels(target: Target) -> None:
-    """Refuse levels the node cannot pass between (without leakage; leakage is checked per design)."""
+    """Refuse levels the node cannot pass between (without leakage; leakage is checked per design).
+
+    The message shows the levels as typed (volts when there is a supply) and blames the
+    setting that is out of place: the threshold when it lies outside the step, the start
+    level (``from_level``) when only the start is on the wrong side of the threshold.
+    """
     if target.kind == "delay":
         th, start = target.threshold, target.start_level
         assert th is not None
-        if target.falling:
-            if not 0.0 < th < start:
-                raise BadValue(
-                    f"a falling node must start above its threshold and the threshold lie above 0 "
-                    f"(start {start:.4g}, threshold {th:.4g} of the scale)",
-                    setting="threshold",
-                )
-        elif not (start < th < 1.0):
-            what = (
-                "below the supply"
-                if target.scale_v is not None
-                else "strictly between 0 and 1 (0 % and 100 %) of the step"
-            )
-            if th >= 1.0:
-                raise BadValue(f"threshold {th:.4g} must lie {what}", setting="threshold")
+        shown = target.typed_level
+        top = "the supply" if target.scale_v is not None else "1 of the step"
+        if not 0.0 < th < 1.0:
             raise BadValue(
-                f"a rising node must start below its threshold (start {start:.4g}, threshold {th:.4g} of the scale)",
+                f"threshold {shown(th)} must lie between 0 and {top}, both ends excluded", setting="threshold"
+            )
+        if target.falling and not th < start:
+            raise BadValue(
+                f"a falling node must start above its threshold (start {shown(start)}, threshold {shown(th)})",
                 setting="from_level",
             )
-        if not th > 0.0:
+        if not target.falling and not start < th:
             raise BadValue(
-                f"threshold must lie strictly between 0 and 1 (or 0 % and 100 %), got {th:g}", setting="threshold"
+                f"a rising node must start below its threshold (start {shown(start)}, threshold {shown(th)})",
+                setting="from_level",
             )
     elif target.kind == "period":
         assert target.thresholds is not None
         low, high = target.thresholds
         if not 0.0 < low < high < 1.0:
+            shown = target.typed_level
             raise BadValue(
-                f"the thresholds must satisfy 0 < low < high < supply, got {low:.4g} and {high:.4g} of the supply",
+                f"the thresholds must satisfy 0 < low < high < supply, got {shown(low)} and {shown(high)}",
                 setting="thresholds",
             )
 

@@ -137,9 +137,9 @@ BAD = {
     "min above max": (["--tau", "1ms", "--c-min", "1u", "--c-max", "1n"], "--c-min", "above --c-max"),
     "threshold outside (0, 1)": (["--delay", "1ms", "--threshold", "1.5"], "--threshold", "between 0 and 1"),
     "threshold at supply": (
-        ["--delay", "1ms", "--threshold", "5V", "--supply", "5V"],
+        ["--delay", "1ms", "--threshold", "6V", "--supply", "5V"],
         "--threshold",
-        "below the supply",
+        "6 V must lie between 0 and the supply",
     ),
     "no target": (["--r-series", "E96"], "target", "got none"),
     "two targets": (["--tau", "1ms", "--cutoff", "1kHz"], "--tau and --cutoff", "exactly one"),

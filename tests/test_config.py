@@ -66,7 +66,7 @@ def test_explicit_config_file_and_relative_stock(run_json, tmp_path, monkeypatch
         ('dielectric = "X9Z"\n', "key 'dielectric': unknown dielectric"),
         ('r-series = "E25"\n', "key 'r-series': unknown series"),
         ("top = 0\n", "key 'top': 0 must be between 1 and 200"),
-        ("seed = -1\n", "key 'seed': -1 is not a whole number 0 or more"),
+        ("seed = -1\n", "key 'seed': -1 is not a whole number from 0 to 1e18"),
         ("temp = \n", "not valid TOML"),
     ],
 )

@@ -69,7 +69,7 @@ def test_threshold_outside_open_interval(fraction):
 def test_voltage_threshold_rules():
     with pytest.raises(BadValue, match="in volts needs supply"):
         targets.level_fraction(2.0, is_volts=True, scale_v=None, setting="threshold")
-    with pytest.raises(BadValue, match="below the supply"):
+    with pytest.raises(BadValue, match="5 V must lie between 0 and the supply"):
         targets.for_delay(
             1.0, targets.level_fraction(5.0, is_volts=True, scale_v=5.0, setting="threshold"), scale_v=5.0
         )
