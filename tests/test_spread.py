@@ -173,3 +173,26 @@ def test_designs_in_one_batch_match_each_alone():
         assert (alone.p_low[0], alone.p_median[0], alone.p_high[0]) == pytest.approx(
             (both.p_low[m], both.p_median[m], both.p_high[m]), rel=1e-12
         )
+
+
+def test_bin_counts_equal_numpy_histogram_of_clipped_values():
+    from rcpick.variation import _bin_counts
+
+    rng = np.random.default_rng(3)
+    values = rng.normal(1.0, 0.2, size=(5, 20000))
+    ours = _bin_counts(values, 0.7, 1.3, 40)
+    reference = np.histogram(np.clip(values, 0.7, 1.3), bins=40, range=(0.7, 1.3))[0]
+    assert np.array_equal(ours, reference) and ours.sum() == values.size
+
+
+@pytest.mark.parametrize("q", [0.00135, 0.5, 0.99865, 0.0, 1.0])
+def test_quantile_in_place_is_numpys_linear_quantile(q):
+    from rcpick.variation import quantile_in_place
+
+    rng = np.random.default_rng(5)
+    values = rng.normal(size=(3, 2001))
+    values[1, :7] = np.inf  # never-reached units sort last
+    with np.errstate(invalid="ignore"):  # inf − inf between two never-reached units, in both
+        expected = np.quantile(values, q, axis=1)
+        found = quantile_in_place(values.copy(), q)
+    assert np.allclose(found, expected, rtol=0, atol=1e-15, equal_nan=True)
