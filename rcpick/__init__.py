@@ -21,11 +21,13 @@ __all__ = [
     "find",
     "spread",
     "network",
+    "board",
     "read_stock",
     "series_values",
     "FindResult",
     "SpreadResult",
     "NetworkResult",
+    "BoardResult",
     "Candidate",
     "Position",
     "Part",
@@ -46,6 +48,8 @@ _WHERE = {
     "find": "rcpick.api",
     "spread": "rcpick.api",
     "network": "rcpick.api",
+    "board": "rcpick.api",
+    "BoardResult": "rcpick.boardplan",
     "read_stock": "rcpick.api",
     "series_values": "rcpick.series",
     "FindResult": "rcpick.results",
@@ -67,7 +71,8 @@ _WHERE = {
 }
 
 if TYPE_CHECKING:  # pragma: no cover - for type checkers and editors
-    from rcpick.api import find, network, read_stock, spread
+    from rcpick.api import board, find, network, read_stock, spread
+    from rcpick.boardplan import BoardResult
     from rcpick.errors import BadValue, ClashingOptions, NotReached, RcpickError, UnknownName, Unreachable
     from rcpick.results import Candidate, FindResult, NetworkResult, Part, Position, Spread, SpreadResult
     from rcpick.series import series_values

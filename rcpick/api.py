@@ -165,6 +165,49 @@ def network(file: str | Path, *, node: str | None = None, threshold: Value = Non
     return run_network(spec)
 
 
+def board(
+    file: str | Path,
+    *,
+    require: str | None = None,
+    pool: Value = None,
+    min_yield: Value = None,
+    samples: Value = None,
+    seed: Value = None,
+    boards: Value = None,
+    spares: Value = None,
+    config: str | Path | None = None,
+    progress: Progress = None,
+):
+    """Pick one design per timing of a board file jointly, so the timings share line items (docs/board.md).
+
+    ``require``: ``"yield"`` (each design's yield at least its ``min_yield``) or ``"worst-case"``. ``min_yield``,
+    ``samples``, ``seed``, ``boards`` and ``spares`` apply to every timing that does not set its own; ``config``
+    names a project file under the board's ``[defaults]``. Returns a :class:`rcpick.boardplan.BoardResult`.
+    """
+    typed = {"board_file": str(file), "require": require, "pool": pool}
+    passed = dict(min_yield=min_yield, samples=samples, seed=seed, boards=boards, spares=spares)
+    return run_board(
+        api_layer({k: v for k, v in typed.items() if v is not None}),
+        api_layer({k: v for k, v in passed.items() if v is not None}),
+        file_layer(Path(config)) if config is not None else None,
+        progress=progress,
+    )
+
+
+def run_board(board_layer: Layer, passed: Layer, config: Layer | None, *, progress: Progress = None, query_extra=None):
+    """Read a board file through its layers and plan it (what :func:`board` and ``rcpick board`` do)."""
+    from rcpick.boardfile import read_board
+    from rcpick.boardplan import plan_board
+
+    path = board_layer.values.get("board_file")
+    if path is None:
+        from rcpick.errors import BadValue
+
+        raise BadValue("give the board file", setting="board_file")
+    found = read_board(path, passed=passed, board_layer=board_layer, config=config)
+    return plan_board(found, progress=progress, query_extra=query_extra)
+
+
 def read_stock(path: str | Path) -> stocks.Stock:
     """Read and check a stock file (CSV or XLSX; ``"demo"`` for the invented demo stock)."""
     try:
@@ -694,6 +737,7 @@ def run_spread(
             nominal=nominal,
             contributions=shares,
             histogram=(edges.tolist(), counts.tolist()),
+            histogram_units=mc.histogram_units,
             temperatures_c=mc.temperatures_c.tolist(),
             reference_c=mc.reference_c,
             analysis={"settings": settings_dict(plan_like, spec), "stock": stock.path if stock else None},

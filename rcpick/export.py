@@ -152,7 +152,7 @@ def order_rows(document: dict, picks: list[int], boards: int, spares: float) -> 
     for line in lines.values():
         detail = line.pop("_detail")
         stock = detail.get("stock")
-        total = math.ceil(line["qty per board"] * boards * (1 + spares) - 1e-9)
+        total = order_total(line["qty per board"], boards, spares)
         row = {name: line.get(name) for name in ORDER_PART_COLUMNS}
         row.update(
             {
@@ -179,6 +179,12 @@ def order_rows(document: dict, picks: list[int], boards: int, spares: float) -> 
             )
         rows.append(row)
     return rows
+
+
+def order_total(per_board: int, boards: int, spares: float) -> int:
+    """Parts to order: quantity per board × boards × (1 + spares), rounded up (a product that is a whole
+    number within 1e-9 is not rounded up past it)."""
+    return math.ceil(per_board * boards * (1 + spares) - 1e-9)
 
 
 def check_ranks(picks: list[int], count: int) -> list[int]:

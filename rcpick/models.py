@@ -263,3 +263,34 @@ def aging_change(aging_per_decade: tuple[float, float], hours: float) -> tuple[f
     decades = math.log10(hours / AGING_REFERENCE_H)
     ends = sorted((-aging_per_decade[0] * decades, -aging_per_decade[1] * decades))
     return ends[0], ends[1]
+
+
+def annotated(
+    letter: str,
+    params: dict,
+    label: str,
+    base_r: PartModel,
+    base_c: PartModel,
+    *,
+    aging_hours: float | None,
+    loss: float,
+) -> PartModel:
+    """A part's model from its own annotations (a netlist line's, a board's ``have`` entry's:
+    ``tol``, ``tcr``/``tc``, ``tech``, ``dielectric``), the request's defaults ``base_r``/``base_c`` otherwise."""
+    if letter == "R":
+        drift, name = base_r.drift, base_r.name
+        if "tech" in params:
+            _, drift, _ = resistor_technology(params["tech"])
+            name = params["tech"]
+        if "tcr" in params:
+            drift, name = linear(*params["tcr"]), "annotated TCR"
+        return PartModel(params.get("tol", base_r.tolerance), drift, label=label, name=name)
+    if "dielectric" in params:
+        diel = dielectric(params["dielectric"])
+        aging = aging_change(diel.aging_per_decade, aging_hours) if aging_hours else (0.0, 0.0)
+        drift = linear(params["tc"][0], params["tc"][1], rated_c=diel.drift.rated_c) if "tc" in params else diel.drift
+        return PartModel(params.get("tol", diel.tolerance), drift, aging, loss, label=label, name=diel.code)
+    drift = linear(*params["tc"]) if "tc" in params else base_c.drift
+    return PartModel(
+        params.get("tol", base_c.tolerance), drift, base_c.aging, base_c.loss, label=label, name=base_c.name
+    )

@@ -163,23 +163,8 @@ class NetDesign:
 
 def element_model(element, value: float, base_r: PartModel, base_c: PartModel, mdl) -> PartModel:
     """A netlist element's model: its own annotations, then the request's defaults."""
-    p = element.params
-    if element.letter == "R":
-        drift, name = base_r.drift, base_r.name
-        if "tech" in p:
-            _, drift, _ = models.resistor_technology(p["tech"])
-            name = p["tech"]
-        if "tcr" in p:
-            drift, name = models.linear(*p["tcr"]), "netlist TCR"
-        return PartModel(p.get("tol", base_r.tolerance), drift, label=element.name, name=name)
-    if "dielectric" in p:
-        diel = models.dielectric(p["dielectric"])
-        aging = models.aging_change(diel.aging_per_decade, mdl.aging_hours) if mdl.aging_hours else (0.0, 0.0)
-        drift = models.linear(p["tc"][0], p["tc"][1], rated_c=diel.drift.rated_c) if "tc" in p else diel.drift
-        return PartModel(p.get("tol", diel.tolerance), drift, aging, mdl.loss, label=element.name, name=diel.code)
-    drift = models.linear(*p["tc"]) if "tc" in p else base_c.drift
-    return PartModel(
-        p.get("tol", base_c.tolerance), drift, base_c.aging, base_c.loss, label=element.name, name=base_c.name
+    return models.annotated(
+        element.letter, element.params, element.name, base_r, base_c, aging_hours=mdl.aging_hours, loss=mdl.loss
     )
 
 

@@ -107,8 +107,9 @@ _ANNOTATIONS = {
 }
 
 
-def _params(path: str, line: int, letter: str, tokens: list[str], name: str) -> dict:
-    """The annotations after an element's value: bare tokens known by their unit or form."""
+def read_annotations(letter: str, tokens: list[str], name: str) -> dict:
+    """The annotations after a part's value (bare tokens known by their unit or form), for a netlist line or a
+    board's ``have`` entry; an error names ``name``."""
     out: dict = {}
 
     def once(key: str, value, token: str) -> None:
@@ -142,8 +143,16 @@ def _params(path: str, line: int, letter: str, tokens: list[str], name: str) -> 
             message = error.message if error.message.startswith(f"{name}:") else f"{name}: {error.message}"
             if isinstance(error, UnknownName):
                 message = f"{name}: cannot read {token!r}; expected {_ANNOTATIONS[letter]}"
-            raise _fail(path, line, message) from None
+            raise BadValue(message) from None
     return out
+
+
+def _params(path: str, line: int, letter: str, tokens: list[str], name: str) -> dict:
+    """A netlist line's annotations (:func:`read_annotations`); an error names the file and line."""
+    try:
+        return read_annotations(letter, tokens, name)
+    except RcpickError as error:
+        raise _fail(path, line, error.message) from None
 
 
 def parse(text: str, path: str = "<netlist>") -> Netlist:

@@ -416,6 +416,7 @@ class SpreadResult(_Saves):
     nominal: float
     contributions: dict[str, float | None]
     histogram: tuple[list[float], list[int]]
+    histogram_units: int
     temperatures_c: list[float]
     reference_c: float
     analysis: dict
@@ -448,7 +449,11 @@ class SpreadResult(_Saves):
             {
                 "spread": d.spread.to_dict(),
                 "contributions": self.contributions,
-                "histogram": {"edges": self.histogram[0], "counts": self.histogram[1]},
+                "histogram": {
+                    "edges": self.histogram[0],
+                    "counts": self.histogram[1],
+                    "units": self.histogram_units,
+                },
                 "temperatures_c": self.temperatures_c,
                 "reference_c": self.reference_c,
                 "analysis": self.analysis,

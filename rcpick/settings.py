@@ -365,6 +365,9 @@ RANKING = "Ranking"
 STRESS = "Part stress"
 STOCK = "Stock and export"
 NETWORK = "Network"
+BOARD = "Board"
+#: Designs per timing and source that a board plan analyses (docs/board.md).
+MIN_POOL, MAX_POOL = 2, 100
 
 _DECLARED = [
     # target
@@ -706,7 +709,7 @@ _DECLARED = [
         shown="95%",
         metavar="PCT",
         panel=RANKING,
-        help="Yield a design must reach for --rank cost.",
+        help="Yield a design must reach for --rank cost, and each timing of a board.",
     ),
     # stress
     Setting(
@@ -820,6 +823,39 @@ _DECLARED = [
         option="FILE",
         help="Netlist of R, C, V and I element lines.",
     ),
+    # a whole board (rcpick board)
+    Setting(
+        "board_file",
+        lambda raw: path_text(raw),
+        metavar="BOARD.toml",
+        in_files=False,
+        option="BOARD",
+        help="Board file: [defaults], one [[timing]] table per timing, optional have (docs/board.md).",
+    ),
+    Setting(
+        "require",
+        choice("yield", "worst-case"),
+        default="yield",
+        shown="yield",
+        metavar="yield|worst-case",
+        panel=BOARD,
+        in_files=False,
+        help="What each timing's design must meet: yield at or above --min-yield, or a worst case wholly "
+        "inside its window or limit.",
+    ),
+    Setting(
+        "pool",
+        count(MIN_POOL, MAX_POOL),
+        count=True,
+        default=10,
+        shown="10",
+        metavar="N",
+        panel=BOARD,
+        in_files=False,
+        help=f"Designs per timing offered to the joint choice: find's best N, and N more made of values other "
+        f"timings or the board use ({MIN_POOL}…{MAX_POOL}; a larger pool may find fewer line items, and takes "
+        f"longer to prove).",
+    ),
 ]
 
 
@@ -896,7 +932,7 @@ def named(*names: str) -> list[Setting]:
 # --- names as the user wrote them ------------------------------------------------
 
 #: Arguments (not options) of the commands, as their help names them.
-ARGUMENTS = {"series": "SERIES", "file": "FILE", "format": "--format"}
+ARGUMENTS = {"series": "SERIES", "file": "FILE", "board_file": "BOARD", "format": "--format"}
 
 
 def option_name(setting: str) -> str:

@@ -57,6 +57,7 @@ class Given:
 
     raw: Any
     layer: Layer
+    rank: int = 0  # the layer's place, 0 = highest priority
 
 
 def api_layer(values: Mapping[str, Any]) -> Layer:
@@ -87,7 +88,7 @@ def file_layer(path: Path, table: Mapping[str, Any] | None = None, *, base: Path
         if setting is None or not setting.in_files:
             valid = " ".join(s.key for s in SETTINGS.values() if s.in_files)
             raise BadValue(f"{path}: unknown key {key!r}; valid keys: {valid}")
-        text = _file_value(path, setting, value, base or path.parent)
+        text = file_value(f"{path}: key {setting.key!r}", setting, value, base or path.parent)
         try:  # every key is checked when the file is read, whichever command reads it
             setting.read(text)
         except RcpickError as error:
@@ -97,9 +98,9 @@ def file_layer(path: Path, table: Mapping[str, Any] | None = None, *, base: Path
     return Layer(values, str(path), file_key_namer(str(path)), in_file=True)
 
 
-def _file_value(path: Path, setting: Setting, value: Any, base: Path) -> Any:
-    """A file's value as the command line would type it (numbers become text, except counts and switches)."""
-    where = f"{path}: key {setting.key!r}"
+def file_value(where: str, setting: Setting, value: Any, base: Path) -> Any:
+    """A file's value as the command line would type it (numbers become text, except counts and switches);
+    ``where`` names the key in errors, ``base`` is the folder a relative file name is read from."""
     if isinstance(value, bool):
         if not setting.flag:
             raise BadValue(f'{where} must be text such as "{setting.shown or "a value"}", got {value!r}')
@@ -108,7 +109,7 @@ def _file_value(path: Path, setting: Setting, value: Any, base: Path) -> Any:
         return value if setting.count else str(value)
     if not isinstance(value, str):
         raise BadValue(f"{where} must be text or a number, got {value!r}")
-    if setting.name == "stock" and value != stocks.DEMO and not Path(value).is_absolute():
+    if setting.name in ("stock", "net") and value != stocks.DEMO and not Path(value).is_absolute():
         return str((base / value).resolve())
     return value
 
@@ -169,7 +170,7 @@ class Spec:
                         error.origin = f"{layer.source}: key {setting.key!r}"
                     error.namer = layer.namer
                     raise
-                given[name] = Given(raw, layer)
+                given[name] = Given(raw, layer, present.index(layer))
                 break
         spec = cls(**values)
         object.__setattr__(spec, "_given", given)
@@ -185,6 +186,11 @@ class Spec:
 
     def is_given(self, name: str) -> bool:
         return name in getattr(self, "_given", {})
+
+    def _rank(self, name: str) -> int:
+        """The priority of the layer that gave ``name`` (0 = highest); a large number when none did."""
+        given = getattr(self, "_given", {}).get(name)
+        return given.rank if given is not None else 1 << 30
 
     def typed(self, name: str) -> bool:
         """Given by the user in the request itself (not by a project file)."""
@@ -248,7 +254,9 @@ class Spec:
             )
         if self.leak is not None and kind not in ("delay", "period"):  # type: ignore[attr-defined]
             raise ClashingOptions("{leak} applies to {delay} and {period}", setting="leak")
-        if self.limit is not None and self.is_given("window"):  # type: ignore[attr-defined]
+        limited = self.limit is not None  # type: ignore[attr-defined]
+        if limited and self.is_given("window") and self._rank("window") <= self._rank("limit"):
+            # a window from a lower layer (a project file's, a board's [defaults]) gives way to the limit
             raise self._clash("limit", "window", "a limit is one-sided, a window two-sided")
         if self.threshold_tol is not None and kind not in ("delay", "period"):  # type: ignore[attr-defined]
             raise ClashingOptions(

@@ -41,6 +41,14 @@ def test_file_series_does_not_clash_with_fix(run_json, project):
     assert doc["candidates"][0]["r"]["ohm"] == 10e3
 
 
+def test_file_window_gives_way_to_a_typed_limit(run, run_json, project):
+    (project / "rcpick.toml").write_text('window = "5%"\n')
+    doc = run_json("find", "--tau", "1ms", "--limit", "upper", "--top", "2")
+    assert doc["target"]["limit"] == "upper"
+    clash = run("find", "--tau", "1ms", "--limit", "upper", "--window", "5%")
+    assert clash.exit_code == 2 and "--limit and --window cannot be used together" in clash.stderr
+
+
 def test_explicit_config_file_and_relative_stock(run_json, tmp_path, monkeypatch):
     (tmp_path / "team").mkdir()
     (tmp_path / "team" / "parts.csv").write_text("kind,value\nR,10k\nR,4k7\n")

@@ -148,6 +148,14 @@ def _values_around(run, command, out):
     assert "nearest by ratio: 4K99" in out
 
 
+def _board(run, command, out):
+    doc = _json(run, command)
+    assert (doc["distinct_line_items"], doc["greedy_line_items"]) == (10, 16) and not doc["unmet"]
+    assert all(t["spread"]["yield"] >= 0.99 for t in doc["timings"])
+    assert any(item["have"] for item in doc["line_items"])
+    assert "Line items 10" in out
+
+
 def _quick(run, command, out):
     assert "Recommendation Build rank 1" in out
 
@@ -173,6 +181,7 @@ CLAIMS = {
     "rcpick net docs/examples/two-stage.cir": _net_two_stage,
     "rcpick find --net docs/examples/reset-divider.cir --vary R1,C1 --delay 8ms --threshold 2.0V --node rst "
     "--r-parts 1 --c-parts 1": _net_find,
+    "rcpick board docs/examples/sensor-board.toml": _board,
     "rcpick find --tau 1ms --top 3 --format json": _json_example,
     "rcpick values E24 --from 1k --to 10k": _values_range,
     "rcpick values E96 --around 5k": _values_around,

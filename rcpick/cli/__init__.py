@@ -33,6 +33,10 @@ COMMANDS = {
         "Find the standard R and C values (single parts or pairs) that best hit a timing target.",
     ),
     "spread": ("rcpick.cli.spread", "Analyse one design: worst case, Monte Carlo spread, yield, contributions."),
+    "board": (
+        "rcpick.cli.board",
+        "Pick one design per timing of a whole board, jointly, so the timings share part values.",
+    ),
     "net": ("rcpick.cli.net", "Order, natural time constants and step response of an RC network from a netlist."),
     "values": ("rcpick.cli.values", "List the values of an IEC 60063 E-series, or the neighbours of one value."),
     "config": ("rcpick.cli.config", "Show every effective setting of find and spread, and where it came from."),

@@ -381,7 +381,12 @@ class ProgressBar:
         self.task: Any = None
 
     def start(self, total: int) -> None:
-        if total < PROGRESS_THRESHOLD or not sys.stderr.isatty() or self.bar is not None:
+        """Announce ``total`` more unit-evaluations (a board announces one batch per analysis)."""
+        if self.bar is not None:
+            task = self.bar.tasks[0]
+            self.bar.update(self.task, total=(task.total or 0) + total)
+            return
+        if total < PROGRESS_THRESHOLD or not sys.stderr.isatty():
             return
         from rich.console import Console
         from rich.progress import BarColumn, Progress, TimeRemainingColumn
