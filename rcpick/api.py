@@ -765,7 +765,7 @@ def _design_combo(kind: str, arrangement: str, parts: list[float]) -> combos.Com
     a = parts[0]
     b = parts[1] if len(parts) > 1 else float("nan")
     value = engine.combine(np.array([a]), np.array([b if len(parts) > 1 else 0.0]), np.array([code]), kind)
-    return combos.Combos(kind, value, np.array([code], dtype=np.int8), np.array([a]), np.array([b]))
+    return combos.Combos.of(kind, value, [code], [a], [b])
 
 
 # --- networks -----------------------------------------------------------------------

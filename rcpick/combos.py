@@ -13,6 +13,7 @@ OpenStax, *College Physics 2e*, eqs. 19.63 (capacitors in series,
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -25,6 +26,18 @@ KINDS = ("resistance", "capacitance")
 
 #: Significant figures to which two effective values count as the same.
 SAME_VALUE_DIGITS = 12
+
+
+def distinct(values) -> np.ndarray:
+    """The distinct values of a 1-D array, sorted (as ``np.unique``, which in numpy 2 imports numpy.ma, about
+    10 ms of start-up)."""
+    found = np.sort(np.asarray(values).ravel())
+    if len(found) < 2:
+        return found
+    keep = np.empty(len(found), dtype=bool)
+    keep[0] = True
+    np.not_equal(found[1:], found[:-1], out=keep[1:])
+    return found[keep]
 
 
 def series_value(a: np.ndarray, b: np.ndarray, kind: str) -> np.ndarray:
@@ -49,27 +62,52 @@ class Combos:
         Effective value of each candidate, SI units, ascending.
     wiring : ndarray of int8
         SINGLE, SERIES or PARALLEL.
-    part_a, part_b : ndarray
-        The part values (SI); ``part_b`` is NaN for a single part.
+    table : ndarray
+        The distinct part values the candidates are made of (SI), ascending.
+    first, second : ndarray of int16 or int32
+        Each candidate's parts as indices into ``table``; ``second`` is −1 for a single part. (Indices keep a
+        wide space small: 13 bytes a candidate, where two float part values would take 25.)
     """
 
     kind: str
     value: np.ndarray
     wiring: np.ndarray
-    part_a: np.ndarray
-    part_b: np.ndarray
+    table: np.ndarray
+    first: np.ndarray
+    second: np.ndarray
 
     def __len__(self) -> int:
         return len(self.value)
 
-    @property
+    @functools.cached_property
     def parts(self) -> np.ndarray:
-        """Number of physical parts of each candidate (1 or 2)."""
-        return np.where(self.wiring == SINGLE, 1, 2)
+        """Number of physical parts of each candidate (1 or 2), computed once."""
+        return np.where(self.wiring == SINGLE, 1, 2).astype(np.int8)
+
+    @property
+    def part_a(self) -> np.ndarray:
+        """The first (smaller) part value of each candidate, SI."""
+        return self.table[self.first]
+
+    @property
+    def part_b(self) -> np.ndarray:
+        """The second part value of each candidate, SI; NaN for a single part."""
+        return np.where(self.second >= 0, self.table[np.maximum(self.second, 0)], np.nan)
 
     def parts_of(self, i: int) -> list[float]:
         """The part values of candidate ``i`` (SI)."""
-        return [float(self.part_a[i])] if self.wiring[i] == SINGLE else [float(self.part_a[i]), float(self.part_b[i])]
+        a = float(self.table[self.first[i]])
+        return [a] if self.wiring[i] == SINGLE else [a, float(self.table[self.second[i]])]
+
+    @classmethod
+    def of(cls, kind: str, value, wiring, part_a, part_b) -> Combos:
+        """Candidates given by their part values (``part_b`` NaN for a single part), in the order given."""
+        a = np.asarray(part_a, dtype=float)
+        b = np.asarray(part_b, dtype=float)
+        table = distinct(np.concatenate([a, b[~np.isnan(b)]]))
+        first = np.searchsorted(table, a).astype(np.int32)
+        second = np.where(np.isnan(b), -1, np.searchsorted(table, np.nan_to_num(b))).astype(np.int32)
+        return cls(kind, np.asarray(value, dtype=float), np.asarray(wiring, dtype=np.int8), table, first, second)
 
 
 def _same_value_key(values: np.ndarray) -> np.ndarray:
@@ -77,6 +115,10 @@ def _same_value_key(values: np.ndarray) -> np.ndarray:
     exponent = np.floor(np.log10(values))
     scale = 10.0 ** (SAME_VALUE_DIGITS - 1 - exponent)
     return np.round(values * scale) / scale
+
+
+#: Candidates handled at once in the steps of :func:`build` that need temporary arrays.
+BUILD_BLOCK = 1 << 20
 
 
 def build(parts: np.ndarray, kind: str, max_parts: int, low: float, high: float) -> Combos:
@@ -92,40 +134,59 @@ def build(parts: np.ndarray, kind: str, max_parts: int, low: float, high: float)
         1 (single parts only) or 2 (also series and parallel pairs).
     low, high : float
         The position's range; pairs whose effective value leaves it are dropped.
+
+    Memory stays near the result's own size: the pairs are counted, then written row by row into arrays of
+    that size; the duplicates are found in blocks.
     """
-    parts = np.unique(np.asarray(parts, dtype=float))
-    values = [parts]
-    wiring = [np.full(len(parts), SINGLE, dtype=np.int8)]
-    first = [parts]
-    second = [np.full(len(parts), np.nan)]
-    if max_parts >= 2 and len(parts):
-        ia, ib = np.triu_indices(len(parts))
-        a, b = parts[ia], parts[ib]
-        for code, combined in ((SERIES, series_value(a, b, kind)), (PARALLEL, parallel_value(a, b, kind))):
-            inside = (combined >= low * (1 - RANGE_SLACK)) & (combined <= high * (1 + RANGE_SLACK))
-            values.append(combined[inside])
-            wiring.append(np.full(int(inside.sum()), code, dtype=np.int8))
-            first.append(a[inside])
-            second.append(b[inside])
-    value = np.concatenate(values)
-    wire = np.concatenate(wiring)
-    part_a = np.concatenate(first)
-    part_b = np.concatenate(second)
-    # The pieces were concatenated singles first, then series, then parallel,
-    # each in ascending first part; a stable sort by value keeps that order
-    # within a run of equal values, so the first of each run is the one to keep.
-    key = _same_value_key(value)
+    table = distinct(np.asarray(parts, dtype=float))
+    n = len(table)
+    itype = np.int16 if n < 2**15 else np.int32
+    lo, hi = low * (1 - RANGE_SLACK), high * (1 + RANGE_SLACK)
+    rules = ((SERIES, series_value), (PARALLEL, parallel_value)) if max_parts >= 2 else ()
+
+    def row(rule, i: int) -> tuple[np.ndarray, np.ndarray]:
+        combined = rule(table[i], table[i:], kind)
+        inside = np.flatnonzero((combined >= lo) & (combined <= hi))
+        return combined[inside], inside
+
+    counts = [[len(row(rule, i)[1]) for i in range(n)] for _, rule in rules]
+    total = n + sum(sum(c) for c in counts)
+    value = np.empty(total)
+    wiring = np.empty(total, dtype=np.int8)
+    first = np.empty(total, dtype=itype)
+    second = np.empty(total, dtype=itype)
+    # singles first, then series, then parallel, each by ascending first and second part: the order of preference
+    value[:n], wiring[:n], first[:n], second[:n] = table, SINGLE, np.arange(n), -1
+    at = n
+    for (code, rule), rule_counts in zip(rules, counts):
+        for i in range(n):
+            if not rule_counts[i]:
+                continue
+            combined, inside = row(rule, i)
+            end = at + len(inside)
+            value[at:end], wiring[at:end], first[at:end], second[at:end] = combined, code, i, inside + i
+            at = end
+    # Equal values (to SAME_VALUE_DIGITS figures) keep their first, most preferred, arrangement: a stable sort
+    # by the rounded value keeps the order of preference within a run of equal values.
+    key = np.empty(total)
+    for b0 in range(0, total, BUILD_BLOCK):
+        key[b0 : b0 + BUILD_BLOCK] = _same_value_key(value[b0 : b0 + BUILD_BLOCK])
     order = np.argsort(key, kind="stable")
-    key = key[order]
-    keep = np.ones(len(order), dtype=bool)
-    keep[1:] = key[1:] != key[:-1]
+    keep = np.empty(total, dtype=bool)
+    for b0 in range(0, total, BUILD_BLOCK):
+        b1 = min(total, b0 + BUILD_BLOCK)
+        here = key[order[b0:b1]]
+        before = key[order[b0 - 1]] if b0 else np.nan
+        keep[b0:b1] = here != np.concatenate([[before], here[:-1]])
+    del key
     order = order[keep]
-    return Combos(kind, value[order], wire[order], part_a[order], part_b[order])
+    del keep
+    return Combos(kind, value[order], wiring[order], table, first[order], second[order])
 
 
 def fixed(value: float, kind: str) -> Combos:
     """A position held at exactly one value (standard or not)."""
-    return Combos(kind, np.array([value]), np.array([SINGLE], dtype=np.int8), np.array([value]), np.array([np.nan]))
+    return Combos.of(kind, [value], [SINGLE], [value], [np.nan])
 
 
 def contributor_move(combos: Combos) -> np.ndarray:
@@ -145,5 +206,7 @@ def contributor_move(combos: Combos) -> np.ndarray:
 def subset(combos: Combos, mask: np.ndarray) -> tuple[Combos, np.ndarray]:
     """The candidates where ``mask`` holds, and their indices in ``combos``."""
     index = np.flatnonzero(mask)
-    sub = Combos(combos.kind, combos.value[index], combos.wiring[index], combos.part_a[index], combos.part_b[index])
+    sub = Combos(
+        combos.kind, combos.value[index], combos.wiring[index], combos.table, combos.first[index], combos.second[index]
+    )
     return sub, index

@@ -97,3 +97,10 @@ def test_singles_only_and_fixed():
     assert np.all(built.wiring == SINGLE) and len(built) == len(parts)
     one = combos.fixed(1234.5, "resistance")
     assert len(one) == 1 and one.parts_of(0) == [1234.5] and math.isnan(one.part_b[0])
+
+
+@given(st.lists(st.sampled_from([0.0, 1.0, 2.5, -3.0, 1e-9, 47e3]), max_size=30))
+def test_distinct_is_numpys_unique(values):
+    from rcpick.combos import distinct
+
+    assert np.array_equal(distinct(np.array(values, dtype=float)), np.unique(np.array(values, dtype=float)))
