@@ -112,7 +112,7 @@ def _with_have(parts: Parts, have: list[HavePart], fixed: bool) -> Parts:
         return parts
     found = parts.combos
     singles = found.value[found.parts == 1]
-    values = np.unique(np.concatenate([singles, np.array(extra)]))
+    values = combos.distinct(np.concatenate([singles, np.array(extra)]))
     max_parts = int(found.parts.max()) if len(found) else 1
     return replace(parts, combos=combos.build(values, found.kind, max_parts, low, high))
 

@@ -32,7 +32,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from rcpick.combos import PARALLEL, SERIES, SINGLE, parallel_value, series_value
+from rcpick.combos import PARALLEL, SERIES, SINGLE, distinct, parallel_value, series_value
 from rcpick.models import ROOM_C, PartModel
 from rcpick.sampling import Draws, Sampler
 from rcpick.target import Target
@@ -428,7 +428,7 @@ def temperature_grid(temp_c: tuple[float, float], per_side: int = 1) -> np.ndarr
     points: list[float] = []
     for a, b in _sides(temp_c):
         points.extend(np.linspace(a, b, per_side + 2))
-    return np.unique(np.array(points)) + ROOM_C
+    return distinct(np.array(points)) + ROOM_C
 
 
 def wilson_interval(passed, samples: int, z: float = Z95) -> tuple[np.ndarray, np.ndarray]:
@@ -522,7 +522,7 @@ def _batches(study: Study, rows: np.ndarray) -> list[np.ndarray]:
     """``rows`` in batches of at most :data:`BATCH`, each batch wired alike (R and C)."""
     key = study.r.wiring[rows].astype(int) * 3 + study.c.wiring[rows].astype(int)
     out: list[np.ndarray] = []
-    for value in np.unique(key):
+    for value in distinct(key):
         same = rows[key == value]
         out.extend(same[i : i + BATCH] for i in range(0, len(same), BATCH))
     return out
@@ -574,7 +574,7 @@ def monte_carlo(
     edges = np.linspace(*histogram_range, bins + 1) if histogram_range is not None else None
     # Designs that follow one relative law are simulated once and scaled (see same_laws).
     rep_of, scale = same_laws(study)
-    reps = np.unique(rep_of)
+    reps = distinct(rep_of)
     members = {int(k): np.flatnonzero(rep_of == rep) for k, rep in enumerate(reps)}
     laws = Study(study.r.take(reps), study.c.take(reps), study.temp_c, study.target, study.level_band)
     binned = 0

@@ -89,6 +89,18 @@ def test_solver_equals_brute_force(raw, free):
     assert (choice.new_items, choice.parts, -choice.smallest_margin) == brute_force(options, free)
 
 
+def test_solver_regression_presolve():
+    # found by the property test above: the solver's presolve once called stage 2 of this program infeasible
+    raw = [
+        [({0}, 2, 0)],
+        [({0, 1}, 6, 0), ({1}, 6, 0), ({3, 6, 0, 1}, 2, 0), ({4}, 5, 1)],
+        [({6, 7}, 3, 1), ({7, 6}, 2, 0), ({1, 7, 3, 0}, 3, 3)],
+    ]
+    options = [[Option(frozenset(i), p, m / 1000, o) for o, (i, p, m) in enumerate(opts)] for opts in raw]
+    choice = solve(options)
+    assert (choice.new_items, choice.parts, -choice.smallest_margin) == brute_force(options, frozenset())
+
+
 def test_solver_prefers_shared_items_over_each_timings_first_choice():
     # timing 0's first option uses items {0, 1}; timing 1's uses {2, 3}; both have a second option on {0, 1}
     options = [
