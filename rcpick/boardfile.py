@@ -29,7 +29,7 @@ file (``rcpick.toml``), the built-in defaults. File names (``net``, ``stock``,
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
@@ -37,7 +37,7 @@ from rcpick import settings
 from rcpick import stock as stocks
 from rcpick.errors import BadValue, RcpickError
 from rcpick.models import PartModel, annotated
-from rcpick.notation import parse_quantity
+from rcpick.notation import format_si, parse_quantity
 from rcpick.results import Part, part_of
 from rcpick.specs import FindSpec, Layer, Spec, _field, file_key_namer, file_value, read_toml
 
@@ -50,6 +50,9 @@ TIMING_SETTINGS = ("tau", "cutoff", "delay", "period", "threshold", "from_level"
 NETWORK_SETTINGS = ("net", "vary", "node")
 #: How many of one timing a board may carry.
 MAX_COUNT = 1000
+#: Above this many timings the default pool shrinks to AUTO_POOL_DESIGNS / timings (a given pool is kept).
+AUTO_POOL_TIMINGS = 10
+AUTO_POOL_DESIGNS = 100
 #: Rankings a board's pools may use: both give every pool design a Monte Carlo run.
 BOARD_RANKS = ("yield", "cost")
 
@@ -102,6 +105,7 @@ class Board:
     timings: tuple[Timing, ...]
     have: tuple[HavePart, ...]
     defaults: FindSpec  # [defaults] over the project file (no target): boards, spares and the have parts' models
+    warnings: list[str] = field(default_factory=list)
 
 
 def read_board(
@@ -119,6 +123,8 @@ def read_board(
     from rcpick.textfiles import read_text
 
     path = Path(path)
+    if path.is_dir():
+        raise BadValue(f"{path} is a folder; give the board file (TOML) inside it", setting="board_file")
     if not path.is_file():
         raise BadValue(f"{path}: no such board file", setting="board_file")
     text = read_text(path)
@@ -130,6 +136,10 @@ def read_board(
     top = {k: raw[k] for k in ("require", "pool") if k in raw}
     file_top = Layer(top, str(path), file_key_namer(str(path)), in_file=True)
     board = BoardSpec.build(*(layer for layer in (board_layer, file_top) if layer is not None))
+    tables_found = raw.get("timing")
+    if not board.is_given("pool") and isinstance(tables_found, list) and len(tables_found) > AUTO_POOL_TIMINGS:
+        # a large board: smaller pools keep the joint choice quick to prove (docs/board.md)
+        object.__setattr__(board, "pool", max(settings.MIN_POOL, AUTO_POOL_DESIGNS // len(tables_found)))
     defaults_table = raw.get("defaults", {})
     if not isinstance(defaults_table, dict):
         raise BadValue(f"{path}: [defaults] must be a table of settings")
@@ -142,17 +152,23 @@ def read_board(
     seen: set[str] = set()
     for k, table in enumerate(tables, start=1):
         rank = table.get("rank") or defaults_table.get("rank") or "yield"
-        fixed = Layer({"top": min(board.pool, settings.MAX_TOP), "rank": rank}, "board", file_key_namer(str(path)))
+        fixed = Layer({"top": min(board.pool, settings.MAX_TOP), "rank": rank}, "board", key_namer)
         timing = _timing(path, k, table, base, [fixed, passed, defaults, config])
         if timing.name in seen:
             raise BadValue(f"{path}: timing {k}: the name {timing.name!r} is used twice; each timing needs its own")
         seen.add(timing.name)
         timings.append(timing)
     have = _have(path, raw.get("have"), base, default_spec)
+    warnings = [
+        f"have {h.text!r} reads as a {format_si(h.part.value, 'Ω', 3, trim=True)} resistor; a capacitor is "
+        f'written "C {h.text}"'
+        for h in have
+        if h.letter == "R" and h.part.value < 1.0 and h.line is None
+    ]
     name = raw.get("name")
     if name is not None and not isinstance(name, str):
         raise BadValue(f"{path}: key 'name' must be text, got {name!r}")
-    return Board(str(path), text, name, board.require, board.pool, tuple(timings), have, default_spec)
+    return Board(str(path), text, name, board.require, board.pool, tuple(timings), have, default_spec, warnings)
 
 
 def _defaults_layer(path: Path, table: dict, base: Path) -> Layer:
@@ -160,11 +176,15 @@ def _defaults_layer(path: Path, table: dict, base: Path) -> Layer:
 
     for key in ("top", "rank"):
         _refuse_ranking_key(f"{path}: [defaults]", key, table)
+    from dataclasses import replace
+
     try:
-        return file_layer(path, table, base=base)
-    except BadValue as error:
+        return replace(file_layer(path, table, base=base), source=f"{path}: [defaults]", namer=key_namer)
+    except RcpickError as error:
         if "unknown key" in error.message:
             error.message = error.message.replace(f"{path}: unknown key", f"{path}: [defaults] has an unknown key", 1)
+        if error.origin and error.origin.startswith(f"{path}: key"):
+            error.origin = error.origin.replace(f"{path}: key", f"{path}: [defaults] key", 1)
         raise
 
 
@@ -216,12 +236,20 @@ def _timing(path: Path, k: int, table: dict, base: Path, below: list[Layer | Non
     if not any(n in values for n in ("tau", "cutoff", "delay", "period")):
         raise BadValue(f"{where} has no target: give one of tau, cutoff, delay or period")
 
-    def namer(setting: str) -> str:
-        return f"{where}: key {settings.key_name(setting)!r}"
-
-    own = Layer(values, where, namer, in_file=True)
-    spec = FindSpec.build(below[0], own, *below[1:])
+    own = Layer(values, where, key_namer, in_file=True)
+    try:
+        spec = FindSpec.build(below[0], own, *below[1:])
+    except RcpickError as error:  # a clash between keys: named by the timing, the keys as the file writes them
+        if error.origin is None:
+            error.origin = where
+            error.setting = None
+        raise
     return Timing(name, count, spec)
+
+
+def key_namer(setting: str) -> str:
+    """A setting as a board file's key, quoted (``'r-max'``)."""
+    return repr(settings.key_name(setting))
 
 
 # --- parts already on the board -------------------------------------------------------------

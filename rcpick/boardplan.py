@@ -45,15 +45,47 @@ SOURCES = ("find", "shared", "have")
 # --- line items -------------------------------------------------------------------------
 
 
-def item_key(part: Part) -> tuple:
-    """What makes two parts the same line item: kind, value, tolerance, TCR, technology, dielectric, part number."""
+@dataclass(frozen=True)
+class BoardPart:
+    """A part as the bill of materials sees it: the part, and the ratings its timing asks of it (W, V)."""
+
+    part: Part
+    power_w: float | None = None  # resistors: the power rating asked for (r-power), else None
+    voltage_v: float | None = None  # the voltage rating asked for (r-voltage, c-voltage, a stock line's)
+
+    @property
+    def rkm(self) -> str:
+        return self.part.rkm
+
+    @property
+    def kind(self) -> str:
+        return self.part.kind
+
+
+def item_key(item: BoardPart | Part) -> tuple:
+    """What makes two parts the same line item: kind, value, tolerance, TCR, technology, dielectric, part number,
+    and the ratings asked of them (a 10 W bleeder resistor is not the 0.1 W part of the same value)."""
+    bp = item if isinstance(item, BoardPart) else BoardPart(item)
+    part = bp.part
     tol = tuple(round(float(t), 9) for t in part.tolerance)
     tcr = tuple(round(float(t), 3) for t in part.tcr_ppm_per_c) if part.tcr_ppm_per_c else None
-    return (part.kind, float(f"{part.value:.6g}"), tol, tcr, part.technology, part.dielectric, part.part_number or "")
+    return (
+        part.kind,
+        float(f"{part.value:.6g}"),
+        tol,
+        tcr,
+        part.technology,
+        part.dielectric,
+        part.part_number or "",
+        bp.power_w,
+        bp.voltage_v,
+    )
 
 
-def model_text(part: Part) -> str:
-    """A part's model in a few words: ``±5 % thick-film ±100 ppm/°C``, ``X7R ±10 %``, with its part number."""
+def model_text(item: BoardPart | Part) -> str:
+    """A part's model in a few words: ``±5 % thick-film ±100 ppm/°C``, ``X7R ±10 % 50 V``, with its part number."""
+    bp = item if isinstance(item, BoardPart) else BoardPart(item)
+    part = bp.part
     low, high = part.tolerance
     tol = f"±{high * 100:g} %" if abs(low + high) < 1e-12 else f"{low * 100:+g}/{high * 100:+g} %"
     if part.kind == "resistance":
@@ -63,6 +95,10 @@ def model_text(part: Part) -> str:
             text += f" ±{b:g} ppm/°C" if abs(a + b) < 1e-9 else f" {a:+g}…{b:+g} ppm/°C"
     else:
         text = f"{part.dielectric or 'capacitor'} {tol}"
+    if bp.power_w is not None:
+        text += f" {bp.power_w:g} W"
+    if bp.voltage_v is not None:
+        text += f" {bp.voltage_v:g} V"
     if part.part_number:
         text += f" ({part.part_number})"
     return text
@@ -74,6 +110,17 @@ def design_parts(candidate: Candidate) -> list[Part]:
     return [p for pos in positions if pos is not None for p in pos.parts]
 
 
+def rated(parts: list[Part], spec) -> list[BoardPart]:
+    """The parts with the ratings their timing asks of them (given settings only; a stock line's voltage)."""
+    out = []
+    for p in parts:
+        if p.kind == "resistance":
+            out.append(BoardPart(p, spec.r_power, spec.r_voltage))
+        else:
+            out.append(BoardPart(p, None, spec.c_voltage if spec.c_voltage is not None else p.voltage_v))
+    return out
+
+
 # --- one timing's pool ---------------------------------------------------------------------
 
 
@@ -83,7 +130,7 @@ class PoolDesign:
 
     candidate: Candidate
     source: str
-    parts: list[Part]  # every part the design puts on the board (a netlist's fixed parts included)
+    parts: list[BoardPart]  # every part the design puts on the board (a netlist's fixed parts included)
     meets: bool
     margin: float  # relative to the target; −∞ when the node never reaches the level
     why_not: str | None = None
@@ -96,7 +143,7 @@ class Pool:
     timing: Timing
     target: Any
     window: tuple[float, float]  # absolute, target's unit
-    designs: list[PoolDesign] = field(default_factory=list)
+    designs: list[PoolDesign] = field(default_factory=list, repr=False)
     warnings: list[str] = field(default_factory=list)
     unreachable: str | None = None  # why nothing could be searched (no design's nominal inside the window)
     sizes: dict[str, int] = field(default_factory=dict)
@@ -149,7 +196,8 @@ def _judge(candidate: Candidate, window, target, require: str, min_yield: float)
     margin = _margin(candidate, window, target.value, require)
     stress = candidate.stress
     if stress is not None and not stress.get("within_ratings", True):
-        return False, margin, "over a derated part rating"
+        detail = "; ".join(assess.stress_flags(stress)) or "over a derated part rating"
+        return False, margin, f"over a derated part rating: {detail}"
     if require == "worst-case":
         sp = candidate.spread
         if sp.worst_min is None or sp.worst_max is None:
@@ -263,8 +311,8 @@ def _net_pool(timing: Timing, require: str, progress) -> Pool:
     pool = Pool(timing, found.target, found.window, warnings=list(found.warnings))
     for cand in found.candidates:
         meets, margin, why = _judge(cand, found.window, found.target, require, spec.min_yield)
-        pool.designs.append(PoolDesign(cand, "find", design_parts(cand) + fixed, meets, margin, why))
-    pool.sizes = {"find": len(found.candidates), "shared": 0, "have": 0}
+        pool.designs.append(PoolDesign(cand, "find", rated(design_parts(cand) + fixed, spec), meets, margin, why))
+    pool.sizes = {"find": len(found.candidates), "shared": 0, "have": 0, "find_analysed": len(found.candidates)}
     return pool
 
 
@@ -279,7 +327,34 @@ def _values_of(shortlist: search.Shortlist) -> dict[str, set[float]]:
 
 
 def build_pools(board: Board, progress=None) -> list[Pool]:
-    """Every timing's pool, each design analysed once."""
+    """Every timing's pool, each design analysed once. An error about one timing names it."""
+    try:
+        return _build_pools(board, progress)
+    except RcpickError as error:
+        timing = getattr(error, "timing", None)
+        if timing is not None and error.origin is None:
+            error.origin = f"{board.path}: timing {timing!r}"
+        raise
+
+
+def _about(timing: Timing):
+    """A context naming ``timing`` on an error raised inside it (with its settings spelled as the file's keys)."""
+    import contextlib
+
+    @contextlib.contextmanager
+    def named():
+        try:
+            with timing.spec.naming():
+                yield
+        except RcpickError as error:
+            if not hasattr(error, "timing"):
+                error.timing = timing.name  # type: ignore[attr-defined]
+            raise
+
+    return named()
+
+
+def _build_pools(board: Board, progress=None) -> list[Pool]:
     have = list(board.have)
     firsts: dict[int, tuple] = {}
     pools: dict[int, Pool] = {}
@@ -288,18 +363,18 @@ def build_pools(board: Board, progress=None) -> list[Pool]:
         spec = timing.spec
         if spec.net is not None:
             continue
-        with spec.naming():
+        with _about(timing):
             plan = spec.plan()
             try:
                 first = _first_pool(timing, plan, have, search.POOL_CAP)
             except (Unreachable, NotReached) as error:
-                pools[k] = _unreachable_pool(timing, plan, error)
+                pools[k] = _unreachable_pool(timing, plan, error, board.require)
                 continue
         firsts[k] = first
         used[k] = _values_of(first[3])
     for k, timing in enumerate(board.timings):
         if timing.spec.net is not None:
-            with timing.spec.naming():
+            with _about(timing):
                 try:
                     pools[k] = _net_pool(timing, board.require, progress)
                 except (Unreachable, NotReached) as error:
@@ -316,12 +391,12 @@ def build_pools(board: Board, progress=None) -> list[Pool]:
                 for kind in shared:
                     shared[kind] |= values[kind]
         plan, r_use, c_use, first = firsts[k]
-        with timing.spec.naming():
+        with _about(timing):
             pools[k] = _plain_pool(timing, plan, r_use, c_use, first, shared, have, board, progress)
     return [pools[k] for k in range(len(board.timings))]
 
 
-def _unreachable_pool(timing: Timing, plan: Plan, error: RcpickError) -> Pool:
+def _unreachable_pool(timing: Timing, plan: Plan, error: RcpickError, require: str) -> Pool:
     """A timing no design can be found for: its closest design by nominal error, analysed."""
     target = plan.target
     assert target is not None
@@ -334,7 +409,9 @@ def _unreachable_pool(timing: Timing, plan: Plan, error: RcpickError) -> Pool:
     cands, window = _assess(nearest, plan, timing, None)
     pool.window = window
     for cand in cands:
-        pool.designs.append(PoolDesign(cand, "find", design_parts(cand), False, -math.inf, pool.unreachable))
+        margin = _margin(cand, window, target.value, require)
+        parts = rated(design_parts(cand), timing.spec)
+        pool.designs.append(PoolDesign(cand, "find", parts, False, margin, pool.unreachable))
     return pool
 
 
@@ -392,7 +469,7 @@ def _plain_pool(timing, plan, r_use, c_use, first, values, have, board: Board, p
             pool.sizes["have"] = len(rows)
     known: set[tuple] = set()
     for cand, source in entries:
-        parts = design_parts(cand)
+        parts = rated(design_parts(cand), spec)
         ident = (cand.wiring, tuple(sorted(item_key(p) for p in parts)))
         if ident in known:
             continue
@@ -453,6 +530,11 @@ class BoardTiming:
     def met(self) -> bool:
         return self.design is not None
 
+    def __repr__(self) -> str:
+        shown = self.design or self.closest
+        wiring = shown.candidate.wiring if shown else None
+        return f"BoardTiming({self.name!r}, count={self.count}, met={self.met}, design={wiring!r})"
+
 
 @dataclass
 class LineItem:
@@ -462,6 +544,12 @@ class LineItem:
     per_board: int
     used_by: dict[str, int]  # timing name → parts of this item it uses (× its count)
     have: bool  # already on the board
+    power_w: float | None = None  # the power rating asked for, W
+    voltage_v: float | None = None  # the voltage rating asked for, V
+
+    @property
+    def rated(self) -> BoardPart:
+        return BoardPart(self.part, self.power_w, self.voltage_v)
 
     @property
     def kind_letter(self) -> str:
@@ -540,7 +628,9 @@ class BoardResult:
                     "kind": item.kind_letter,
                     "value": item.part.rkm,
                     "value_si": item.part.value,
-                    "model": model_text(item.part),
+                    "model": model_text(item.rated),
+                    "power_rating_w": item.power_w,
+                    "voltage_rating_v": item.voltage_v,
                     "part": item.part.to_dict(),
                     "per_board": item.per_board,
                     "used_by": list(item.used_by),
@@ -577,26 +667,46 @@ class BoardResult:
         rows = []
         stocked = any(item.part.stock_line is not None for item in self.line_items)
         for item in self.line_items:
-            detail = item.part.to_dict()
-            cols = export._part_columns("", detail, item.part.kind)
-            row: dict[str, Any] = {"kind": item.kind_letter, "value": item.part.rkm}
-            row.update({name.strip(): v for name, v in cols.items()})
-            row["model"] = model_text(item.part)
-            row["already on the board"] = "yes" if item.have else "no"
-            row["qty per board"] = item.per_board
-            row["used by"] = ", ".join(f"{n} ({q})" for n, q in item.used_by.items())
-            row["boards"] = n_boards
-            row["spares (%)"] = extra * 100
+            part = item.part
+            tcr = part.tcr_ppm_per_c
+            row: dict[str, Any] = {
+                "kind": item.kind_letter,
+                "value": part.rkm,
+                "value (Ω or F)": part.value,
+                "tol − (%)": part.tolerance[0] * 100,
+                "tol + (%)": part.tolerance[1] * 100,
+                "TCR min (ppm/°C)": tcr[0] if tcr else None,
+                "TCR max (ppm/°C)": tcr[1] if tcr else None,
+                "dielectric": part.dielectric,
+                "model": model_text(item.rated),
+                "power rating (W)": item.power_w,
+                "voltage rating (V)": item.voltage_v,
+                "part number": part.part_number,
+                "already on the board": "yes" if item.have else "no",
+                "qty per board": item.per_board,
+                "used by": ", ".join(f"{n} ({q})" for n, q in item.used_by.items()),
+                "boards": n_boards,
+                "spares (%)": extra * 100,
+            }
             total = export.order_total(item.per_board, n_boards, extra)
             row["total qty"] = total
             if stocked:
-                price = item.part.unit_price
+                price = part.unit_price
+                row["stock line"] = part.stock_line
+                row["package"] = part.package or None
                 row["unit price (each)"] = price
                 row["extended price (total)"] = price * total if price is not None else None
-                row["on hand"] = item.part.on_hand
-                row["shortfall"] = max(0, total - item.part.on_hand) if item.part.on_hand is not None else None
+                row["on hand"] = part.on_hand
+                row["shortfall"] = max(0, total - part.on_hand) if part.on_hand is not None else None
             rows.append(row)
         return rows
+
+    #: The order sheet's columns, for a sheet with no line (every timing unmet).
+    ORDER_COLUMNS = (
+        "kind", "value", "value (Ω or F)", "tol − (%)", "tol + (%)", "TCR min (ppm/°C)", "TCR max (ppm/°C)",
+        "dielectric", "model", "power rating (W)", "voltage rating (V)", "part number", "already on the board",
+        "qty per board", "used by", "boards", "spares (%)", "total qty",
+    )  # fmt: skip
 
     def timing_rows(self) -> list[dict]:
         """One row per timing: target, design, spread against its window, parts, margin."""
@@ -621,33 +731,53 @@ class BoardResult:
             row[f"MC 0.135 % ({unit})"] = sp.p_low if sp else None
             row[f"MC 99.865 % ({unit})"] = sp.p_high if sp else None
             row["yield (fraction)"] = sp.yield_ if sp else None
+            ci = sp.yield_ci if sp and sp.yield_ci else (None, None)
+            row["yield 95 % low (fraction)"], row["yield 95 % high (fraction)"] = ci
             row["margin (fraction)"] = chosen.margin if chosen and math.isfinite(chosen.margin) else None
             row["parts per timing"] = chosen.candidate.parts if chosen else None
+            row["parts on the board"] = len(chosen.parts) * t.count if chosen else None
             row["greedy design"] = t.greedy.candidate.wiring if t.greedy else None
             row["notes"] = None if t.met else (t.pool.unreachable or (t.closest.why_not if t.closest else None))
             rows.append(row)
         return rows
 
-    def save(self, path: str | Path, *, force: bool = False, sheet: str | None = None) -> Path:
-        """Write ``.xlsx`` (sheets timings, order, query) or ``.csv`` (one sheet: ``sheet``, default timings)."""
+    def save(
+        self,
+        path: str | Path,
+        *,
+        boards: int | str | None = None,
+        spares: float | str | None = None,
+        sheet: str | None = None,
+        force: bool = False,
+    ) -> Path:
+        """Write ``.xlsx`` (sheets timings, order, query) or ``.csv`` (one sheet: ``sheet``, default timings).
+
+        ``boards`` and ``spares`` default to the board's own; an existing file is replaced only with ``force``.
+        """
         from rcpick import export
+        from rcpick.errors import BadValue
+        from rcpick.settings import SETTINGS
 
         target = Path(path)
-        suffix = target.suffix.lower()
-        if suffix not in (".xlsx", ".csv"):
-            from rcpick.errors import BadValue
-
+        if target.suffix.lower() not in (".xlsx", ".csv"):
             raise BadValue(f"{str(target)!r} must end in .xlsx or .csv", setting="out", value=str(target))
         if sheet is not None and sheet not in ("timings", "order"):
-            from rcpick.errors import BadValue
-
             raise BadValue(f"unknown sheet {sheet!r}; accepted: timings, order", setting="sheet")
+        n_boards = SETTINGS["boards"].read(boards) if boards is not None else None
+        extra = SETTINGS["spares"].read(spares) if spares is not None else None
+        export.check_target(target, force, sheet)
+        order = self.order_rows(n_boards, extra)
+        query = self.query_rows()
+        if n_boards is not None or extra is not None:
+            query.append(("order quantities", f"boards {n_boards}, spares {extra}", "save()"))
         sheets = {
             "timings": self.timing_rows(),
-            "order": self.order_rows(),
-            "query": export.query_rows(self.query_rows()),
+            "order": order,
+            "query": export.query_rows(query),
         }
-        if suffix == ".xlsx":
+        if not order:  # every timing unmet: the order sheet keeps its header and says why it is empty
+            sheets["order"] = [dict.fromkeys(self.ORDER_COLUMNS, None) | {"kind": "(no timing met: nothing to order)"}]
+        if target.suffix.lower() == ".xlsx":
             export.write_xlsx(target, sheets, force)
         else:
             export.write_csv(target, sheets[sheet or "timings"], force)
@@ -670,9 +800,10 @@ class BoardResult:
             ("boards", d.boards, d.source_of("boards")),
             ("spares", f"{d.spares * 100:g}%", d.source_of("spares")),
         ]
-        for t in self.timings:
-            rows.append((f"timing {t.name!r} min-yield", f"{t.pool.timing.spec.min_yield * 100:g}%", "timing"))
-            rows.append((f"timing {t.name!r} seed used", t.pool.timing.spec.seed, "timing"))
+        for t in self.timings:  # every setting of every timing, with where it came from
+            for key, value, source in t.pool.timing.spec.provenance():
+                rows.append((f"{t.name}: {key}", value, source))
+            rows.append((f"{t.name}: seed used", t.pool.timing.spec.seed, "rcpick"))
         rows.append(("board file", self.board.text, self.board.path))
         return rows
 
@@ -707,20 +838,28 @@ def _design_dict(design: PoolDesign, count: int) -> dict:
     return out
 
 
+def _spell(message: str) -> str:
+    """A warning's ``{setting}`` references spelled as a board file's keys (``'dielectric'``)."""
+    from rcpick.errors import RcpickError
+    from rcpick.settings import key_name
+
+    return RcpickError(message).text(lambda name: repr(key_name(name)))
+
+
 def plan_board(board: Board, *, progress=None, query_extra: list | None = None) -> BoardResult:
     """Analyse every timing's pool once, then choose one design per timing jointly (module docstring)."""
     pools = build_pools(board, progress)
     keys: dict[tuple, int] = {}
-    parts_of_key: dict[int, Part] = {}
+    parts_of_key: dict[int, BoardPart] = {}
 
-    def key_id(part: Part) -> int:
+    def key_id(part: BoardPart) -> int:
         key = item_key(part)
         if key not in keys:
             keys[key] = len(keys)
             parts_of_key[keys[key]] = part
         return keys[key]
 
-    free = frozenset(key_id(h.part) for h in board.have)
+    free = frozenset(key_id(BoardPart(h.part, None, h.part.voltage_v)) for h in board.have)
     solvable: list[int] = []
     options: list[list[Option]] = []
     meeting: list[list[PoolDesign]] = []
@@ -743,6 +882,8 @@ def plan_board(board: Board, *, progress=None, query_extra: list | None = None) 
                 for d in good
             ]
         )
+    if options and progress is not None and hasattr(progress, "stage"):
+        progress.stage(f"Choosing one design for each of {len(options)} timings jointly (integer program)…")
     choice = solve(options, free) if options else None
     greedy_picks = greedy(options) if options else ()
     g_score = score(options, greedy_picks, free) if options else (0, 0, 0.0, 0)
@@ -778,14 +919,21 @@ def plan_board(board: Board, *, progress=None, query_extra: list | None = None) 
             ident = key_id(part)
             item = items.get(ident)
             if item is None:
-                item = items[ident] = LineItem(parts_of_key[ident], 0, {}, ident in free)
+                bp = parts_of_key[ident]
+                item = items[ident] = LineItem(bp.part, 0, {}, ident in free, bp.power_w, bp.voltage_v)
             item.per_board += bt.count
             item.used_by[bt.name] = item.used_by.get(bt.name, 0) + bt.count
-    ordered = sorted(items.values(), key=lambda i: (i.part.kind != "resistance", i.part.value, model_text(i.part)))
-    warnings: list[str] = []
+    ordered = sorted(items.values(), key=lambda i: (i.part.kind != "resistance", i.part.value, model_text(i.rated)))
+    warnings: list[str] = list(board.warnings)
+    cautioned = False
     for bt in timings:
         for w in bt.pool.warnings:
-            text = f"{bt.name}: {w}"
+            text = f"{bt.name}: {_spell(w)}"
+            if w.startswith("Safety:"):
+                if cautioned:  # the full caution once; later discharges point to it
+                    start = bt.target.start_level * bt.target.scale_v
+                    text = f"{bt.name}: Safety: a discharge from {start:.4g} V as well; the caution above applies."
+                cautioned = True
             if text not in warnings:
                 warnings.append(text)
     return BoardResult(

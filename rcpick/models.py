@@ -282,8 +282,8 @@ def annotated(
         if "tech" in params:
             _, drift, _ = resistor_technology(params["tech"])
             name = params["tech"]
-        if "tcr" in params:
-            drift, name = linear(*params["tcr"]), "annotated TCR"
+        if "tcr" in params:  # a TCR given for the part: its technology stays (a line item names both)
+            drift = linear(*params["tcr"])
         return PartModel(params.get("tol", base_r.tolerance), drift, label=label, name=name)
     if "dielectric" in params:
         diel = dielectric(params["dielectric"])

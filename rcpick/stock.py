@@ -477,7 +477,7 @@ def part_model(
             tol,
             drift,
             label=f"{part.part_number or 'stock'} line {part.line}",
-            name=default.name if not part.tcr else "stock TCR",
+            name=default.name,  # the technology; a stocked TCR changes the drift, not the name
             part_number=part.part_number,
         )
     if part.dielectric:

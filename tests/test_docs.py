@@ -150,10 +150,10 @@ def _values_around(run, command, out):
 
 def _board(run, command, out):
     doc = _json(run, command)
-    assert (doc["distinct_line_items"], doc["greedy_line_items"]) == (10, 16) and not doc["unmet"]
+    assert (doc["distinct_line_items"], doc["greedy_line_items"]) == (11, 14) and not doc["unmet"]
     assert all(t["spread"]["yield"] >= 0.99 for t in doc["timings"])
     assert any(item["have"] for item in doc["line_items"])
-    assert "Line items 10" in out
+    assert "Line items 11" in out
 
 
 def _quick(run, command, out):

@@ -20,9 +20,10 @@ EPILOG = """[bold]Examples[/bold]
 
   rcpick board docs/examples/sensor-board.toml --format json
 
-The board file (TOML) has [defaults] (any rcpick.toml key), one [[timing]] table per
+The board file (TOML) has \\[defaults] (any rcpick.toml key), one \\[\\[timing]] table per
 timing (a name, an optional count, one target, any override) and an optional have
-list of parts already on the board; see docs/board.md.
+list of parts already on the board; see docs/board.md. Exit code 0: every timing met;
+1: planned, but some timing could not be met (named in the output); 2: bad input.
 
 [bold]Caution[/bold]: estimates only; verify every timing on hardware. Where a timing matters
 to safety (reset, discharge of stored charge, hazardous voltage), follow the standard in
@@ -34,7 +35,8 @@ OUT = o.cli_only(
     "out", "--out", "Write the plan: .xlsx (sheets timings, order, query) or .csv (one sheet, see --sheet).", "FILE"
 )
 SHEET = o.cli_only("sheet", "--sheet", "Which table a .csv --out holds: timings or order. Default: timings.", "NAME")
-EXTRA = [o.FORMAT_NO_CSV, OUT, SHEET, o.FORCE, o.CONFIG]
+FORCE = o.cli_only("force", "--force", "Overwrite an existing --out file.", switch=True)
+EXTRA = [o.FORMAT_NO_CSV, OUT, SHEET, FORCE, o.CONFIG]
 
 
 @o.reports_errors
@@ -55,7 +57,7 @@ def command(ctx: typer.Context, **values) -> None:
     if out is not None:
         export.check_target(Path(out), force, sheet, setting="out")
     elif sheet is not None:
-        raise ClashingOptions("{sheet} needs {out} FILE.csv", setting="sheet")
+        raise ClashingOptions("needs {out} FILE.csv", setting="sheet")
     board_values = {k: values.pop(k) for k in ("board_file", "require", "pool")}
     result_layers = (o.cli_layer(board_values), o.cli_layer(values), config_layer(Path(config) if config else None))
     with o.ProgressBar() as bar:
@@ -75,6 +77,8 @@ def command(ctx: typer.Context, **values) -> None:
             raise
         written = "timings, order, query" if path.suffix.lower() == ".xlsx" else (sheet or "timings")
         typer.echo(f"Wrote {path} ({written})", err=fmt != "table")
+    if result.unmet:
+        raise typer.Exit(1)
 
 
 command.__signature__ = o.signature(DECLARED, EXTRA, arguments=("board_file",))  # type: ignore[attr-defined]

@@ -14,9 +14,9 @@ def _window_text(t) -> str:
     if target is None:
         return "–"
     if target.limit == "upper":
-        return "at or below"
+        return f"≤ {format_si(target.value, target.unit, 3, trim=True)}"
     if target.limit == "lower":
-        return "at or above"
+        return f"≥ {format_si(target.value, target.unit, 3, trim=True)}"
     low, high = t.window[0] / target.value - 1, t.window[1] / target.value - 1
     if abs(low + high) < 1e-9:
         return f"±{high * 100:g} %"
@@ -44,6 +44,36 @@ def _worst_text(design, t) -> str:
     return f"{(sp.worst_min / v - 1) * 100:+.1f}…{(sp.worst_max / v - 1) * 100:+.1f}"
 
 
+def _pieces(text: str, room: int, sep: str = " ") -> list[str]:
+    """``text`` in lines of at most ``room`` characters, broken at spaces (a longer word is cut)."""
+    import textwrap
+
+    return textwrap.wrap(text, room, break_on_hyphens=False) or [""]
+
+
+def _wrap_column(rows: list[list[str]], columns: list[dict], index: int, width: int, sep: str = " ") -> list[list[str]]:
+    """Rows whose cells in column ``index`` are wrapped onto continuation rows so the table's fixed columns (those
+    never left out) fit ``width``; unchanged when they fit already or too little room is left (16 characters)."""
+    from rcpick.cli.render import GAP
+
+    fixed = [i for i, c in enumerate(columns) if c["drop"] is None]
+    widths = {i: max([len(columns[i]["name"])] + [len(r[i]) for r in rows]) for i in fixed}
+    if sum(widths.values()) + GAP * (len(fixed) - 1) <= width:
+        return rows
+    room = width - sum(w for i, w in widths.items() if i != index) - GAP * (len(fixed) - 1)
+    if room < 16:
+        return rows
+    out = []
+    for row in rows:
+        lines = _pieces(row[index], room, sep)
+        out.append(row[:index] + [lines[0]] + row[index + 1 :])
+        for line in lines[1:]:
+            extra = [""] * len(row)
+            extra[index] = line
+            out.append(extra)
+    return out
+
+
 def _wrap_last(rows: list[list[str]], columns: list[dict], width: int) -> list[list[str]]:
     """Rows whose last cell (a list joined by ", ") is wrapped onto continuation rows to fit ``width``."""
     from rcpick.cli.render import GAP
@@ -54,16 +84,7 @@ def _wrap_last(rows: list[list[str]], columns: list[dict], width: int) -> list[l
         return rows  # too narrow to wrap usefully: the table leaves the column out instead
     out = []
     for row in rows:
-        pieces = row[-1].split(", ")
-        lines, current = [], ""
-        for piece in pieces:
-            trial = f"{current}, {piece}" if current else piece
-            if current and len(trial) > room:
-                lines.append(current + ",")
-                current = piece
-            else:
-                current = trial
-        lines.append(current)
+        lines = _pieces(row[-1], room, ", ")
         out.append(row[:-1] + [lines[0]])
         out += [[""] * (len(row) - 1) + [line] for line in lines[1:]]
     return out
@@ -75,16 +96,25 @@ def board_report(result) -> None:
     board = result.board
     title = f"[bold]Board[/bold] {board.name + ' — ' if board.name else ''}{board.path}"
     out.print(title)
+    specs = [(t, t.pool.timing.spec) for t in result.timings]
     if board.require == "worst-case":
         need = "every timing's worst case inside its window or limit"
     else:
-        levels = sorted({t.pool.timing.spec.min_yield for t in result.timings})
-        need = "yield at or above " + " / ".join(f"{y * 100:g} %" for y in levels)
-    samples = sorted(
-        {t.pool.timing.spec.conditions(network=t.pool.timing.spec.net is not None).samples for t in result.timings}
-    )
+        levels: dict[float, list[str]] = {}
+        for t, spec in specs:
+            levels.setdefault(spec.min_yield, []).append(t.name)
+        common = max(levels, key=lambda y: len(levels[y]))
+        need = f"yield at or above {common * 100:g} %"
+        others = [f"{y * 100:g} % for {', '.join(names)}" for y, names in levels.items() if y != common]
+        if others:
+            need += f" ({'; '.join(others)})"
+    plain = sorted({spec.conditions().samples for _, spec in specs if spec.net is None})
+    nets = sorted({spec.conditions(network=True).samples for _, spec in specs if spec.net is not None})
+    units = ", ".join(f"{n:,}" for n in plain or nets)
+    if plain and nets and nets != plain:
+        units += f" ({', '.join(f'{n:,}' for n in nets)} for netlist timings)"
     out.print(
-        f"[bold]Requirement[/bold] {need}; Monte Carlo {', '.join(f'{s:,}' for s in samples)} units per design; "
+        f"[bold]Requirement[/bold] {need}; Monte Carlo {units} units per design; "
         f"pools of up to {board.pool} designs per source (docs/board.md)"
     )
     out.print()
@@ -115,14 +145,19 @@ def board_report(result) -> None:
                 _percent(shown.candidate.spread.yield_),
                 _worst_text(shown, t),
                 _percent(shown.margin, signed=True),
-                str(shown.candidate.parts * t.count),
+                str(len(shown.parts) * t.count),
             ]
         )
-    dropped = print_table(out, columns, rows)
+    dropped = print_table(out, columns, _wrap_column(rows, columns, 0, out.width))
     if dropped:
         out.print(
             f"[dim](not shown at this width: {', '.join(dropped)}; widen the terminal or use --format json)[/dim]"
         )
+    span = "worst case" if board.require == "worst-case" else "Monte Carlo 0.135 %…99.865 % span"
+    out.print(
+        f"[dim]Parts: on the board (× count, a netlist's fixed parts included). Margin: the {span}'s distance "
+        f"from the nearer end of the window, % of the target.[/dim]"
+    )
     out.print()
     have_count = sum(1 for item in result.line_items if item.have)
     head = f"[bold]Line items[/bold] {result.distinct_line_items}"
@@ -145,7 +180,7 @@ def board_report(result) -> None:
             [
                 item.kind_letter,
                 item.part.rkm + (" *" if item.have else ""),
-                model_text(item.part),
+                model_text(item.rated),
                 str(item.per_board),
                 used,
             ]
@@ -178,13 +213,18 @@ def board_report(result) -> None:
         )
     elif result.choice is not None:
         out.print(
-            "[yellow]Not proven optimal[/yellow]: the solver stopped at its time limit; this is the best choice it "
+            "[yellow]Not proven optimal:[/yellow] the solver stopped at its time limit; this is the best choice it "
             "found. A smaller --pool proves faster."
         )
     for t in result.unmet:
         why = t.pool.unreachable or (t.closest.why_not if t.closest else "no design in the pool")
         closest = f"; closest {t.closest.candidate.wiring}" if t.closest is not None else ""
-        out.print(f"[yellow]Not met[/yellow] {t.name}: {why}{closest}. The other timings are planned without it.")
+        hint = (
+            ""
+            if t.pool.unreachable
+            else "; a wider window, tighter tolerances (r-tol, c-tol) or a stabler dielectric (C0G) may meet it"
+        )
+        out.print(f"[yellow]Not met[/yellow] {t.name}: {why}{closest}. The other timings are planned without it{hint}.")
     for message in result.warnings:
         out.print(f"[yellow]Warning[/yellow] {message}")
     out.print(f"[dim]{WIRING_LEGEND}[/dim]")

@@ -327,7 +327,7 @@ def check_outputs(out: str | None, sheet: str | None, order: str | None, plot: s
         export.check_target(Path(out), force, sheet, setting="out")
     else:
         if sheet is not None:
-            raise ClashingOptions("{sheet} needs {out} FILE.csv", setting="sheet")
+            raise ClashingOptions("needs {out} FILE.csv", setting="sheet")
         if order is not None:
             raise ClashingOptions(
                 "{order} needs {out} FILE (it picks the candidates for the order sheet)", setting="order"
@@ -406,9 +406,23 @@ class ProgressBar:
         if self.bar is not None:
             self.bar.advance(self.task, done)
 
+    def stage(self, text: str) -> None:
+        """Say on a terminal which step a long run is in (the bar, if any, is done by then)."""
+        if not sys.stderr.isatty():
+            return
+        if self.bar is not None:
+            self.bar.stop()
+            self.bar = None
+        sys.stderr.write(f"\r\x1b[K{text}")
+        sys.stderr.flush()
+        self.staged = True
+
     def __enter__(self) -> ProgressBar:
         return self
 
     def __exit__(self, *exc) -> None:
         if self.bar is not None:
             self.bar.stop()
+        if getattr(self, "staged", False):
+            sys.stderr.write("\r\x1b[K")
+            sys.stderr.flush()
