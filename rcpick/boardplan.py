@@ -229,8 +229,8 @@ def _first_pool(timing: Timing, plan: Plan, have: list[HavePart], cap: int):
 
         raise Unreachable(
             f"no allowed combination has its nominal value inside the window {_window_text(target, cond.window)} "
-            f"within R {plan.r.description.split(',')[0]} and C {plan.c.description.split(',')[0]}; widen "
-            "{window}, {r_max} or {c_max}"
+            f"within R {plan.r.description} and C {plan.c.description}; widen {{window}} or allow more "
+            "values: the ranges ({r_min}…{r_max}, {c_min}…{c_max}), the series or the part counts"
         )
     return plan, r_use, c_use, pool.shortlist
 

@@ -655,7 +655,7 @@ _DECLARED = [
         "samples",
         count(MIN_SAMPLES, MAX_SAMPLES),
         count=True,
-        shown="20000 (2000 with --net)",
+        shown="20000 (2000 for a network)",
         metavar="N",
         panel=SPREAD,
         help=f"Monte Carlo units, {MIN_SAMPLES}…{MAX_SAMPLES:,}; 2e4 and 20k read too.",
