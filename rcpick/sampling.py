@@ -156,9 +156,6 @@ class ChunkView:
     def band(self, stream: str, field: str, lot: str | None = None) -> np.ndarray:
         return self.chunk.band(stream, field, lot)[self.start : self.stop]
 
-    def uniform(self, stream: str, field: str) -> np.ndarray:
-        return self.chunk.uniform(stream, field)[self.start : self.stop]
-
 
 #: What the spread engine draws from: a whole chunk or a block of one.
 Draws = Chunk | ChunkView

@@ -848,7 +848,7 @@ _DECLARED = [
         count(MIN_POOL, MAX_POOL),
         count=True,
         default=10,
-        shown="10",
+        shown="10 (100 ÷ the timings on a board of more than ten)",
         metavar="N",
         panel=BOARD,
         in_files=False,
