@@ -759,13 +759,11 @@ class BoardResult:
         from rcpick.settings import SETTINGS
 
         target = Path(path)
-        if target.suffix.lower() not in (".xlsx", ".csv"):
-            raise BadValue(f"{str(target)!r} must end in .xlsx or .csv", setting="out", value=str(target))
         if sheet is not None and sheet not in ("timings", "order"):
             raise BadValue(f"unknown sheet {sheet!r}; accepted: timings, order", setting="sheet")
         n_boards = SETTINGS["boards"].read(boards) if boards is not None else None
         extra = SETTINGS["spares"].read(spares) if spares is not None else None
-        export.check_target(target, force, sheet)
+        export.check_target(target, force, sheet)  # .xlsx or .csv, writable, a sheet only for a .csv
         order = self.order_rows(n_boards, extra)
         query = self.query_rows()
         if n_boards is not None or extra is not None:
@@ -784,15 +782,10 @@ class BoardResult:
         return target
 
     def query_rows(self) -> list[tuple[str, Any, str]]:
-        import datetime
-
-        from rcpick import __version__
+        from rcpick.results import stamp_rows
 
         d = self.board.defaults
-        rows: list[tuple[str, Any, str]] = [
-            ("rcpick version", __version__, "rcpick"),
-            ("date", datetime.datetime.now(datetime.UTC).isoformat(timespec="seconds"), "rcpick"),
-        ]
+        rows = stamp_rows()
         rows += list(self.query_extra)
         rows += [
             ("require", self.board.require, "board"),

@@ -248,6 +248,18 @@ def flat_rows(document: dict) -> list[dict]:
     return rows
 
 
+def stamp_rows() -> list[tuple[str, Any, str]]:
+    """The first rows of every query sheet: the rcpick version and the date (UTC) the result was written."""
+    import datetime
+
+    from rcpick import __version__
+
+    return [
+        ("rcpick version", __version__, "rcpick"),
+        ("date", datetime.datetime.now(datetime.UTC).isoformat(timespec="seconds"), "rcpick"),
+    ]
+
+
 class _Saves:
     """Export and pictures shared by the search results."""
 
@@ -264,15 +276,7 @@ class _Saves:
         return pd.DataFrame(flat_rows(self.to_dict()))
 
     def query_rows(self) -> list[tuple[str, Any, str]]:
-        import datetime
-
-        from rcpick import __version__
-
-        rows: list[tuple[str, Any, str]] = [
-            ("rcpick version", __version__, "rcpick"),
-            ("date", datetime.datetime.now(datetime.UTC).isoformat(timespec="seconds"), "rcpick"),
-            ("seed used", self.spec.seed, "rcpick"),
-        ]
+        rows = stamp_rows() + [("seed used", self.spec.seed, "rcpick")]
         rows += list(self.query_extra)
         rows += self.settings_rows()
         return rows
